@@ -1,7 +1,7 @@
 // Bundles every entry point with esbuild. Entries that do not exist yet are skipped,
 // so the build works while the tree grows. Output goes to dist/ (not tracked).
 import { build } from 'esbuild';
-import { existsSync, mkdirSync, copyFileSync, chmodSync } from 'node:fs';
+import { existsSync, mkdirSync, copyFileSync, chmodSync, readdirSync } from 'node:fs';
 
 const node = { platform: 'node', target: 'node20', format: 'cjs', bundle: true, sourcemap: true, logLevel: 'warning' };
 const entries = [
@@ -10,6 +10,10 @@ const entries = [
   { ...node, entryPoints: ['server/src/lsp/solve-worker.ts'], outfile: 'dist/solve-worker.js' },
   { ...node, entryPoints: ['client/src/extension.ts'], outfile: 'dist/extension.js', external: ['vscode'] },
   { ...node, entryPoints: ['scripts/bench.ts'], outfile: 'dist/bench.js' },
+  // Each benchmark part runs in its own process, so memory figures are its own.
+  ...readdirSync('scripts')
+    .filter((f) => /^bench-.+\.ts$/.test(f))
+    .map((f) => ({ ...node, entryPoints: [`scripts/${f}`], outfile: `dist/${f.replace(/\.ts$/, '.js')}` })),
   { platform: 'browser', target: 'es2022', format: 'iife', bundle: true, sourcemap: false, logLevel: 'warning',
     entryPoints: ['client/webview/main.ts'], outfile: 'dist/webview/preview.js' },
 ];
