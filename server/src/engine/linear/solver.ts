@@ -1,0 +1,156 @@
+// The linear-algebra interface of the engine, generic over the space (3d, axisymmetric, planar) and
+// over the method: a system A·x = b is given as a LinearOperator (a dense matrix, or matrix-free
+// with a product and optional preconditioner hooks); a LinearSolver solves it for several
+// right-hand sides at once, optionally from a warm start. chooseSolver is the single place that
+// picks a method for a problem size; createSolver builds it. New methods (e.g. a treecode-GMRES)
+// register a factory with registerSolver and add their rule to chooseSolver.
+import { luFactor, luSolve } from './dense-lu';
+import { gmres } from './gmres';
+
+/** A square linear operator y = A·x of size n. */
+export interface LinearOperator {
+  readonly n: number;
+  /** y ← A·x. */
+  apply(x: Float64Array, y: Float64Array): void;
+  /** The dense matrix, row-major n×n, when the operator has one (direct solvers need it). */
+  readonly matrix?: Float64Array;
+  /** The diagonal of A (Jacobi preconditioning), when known cheaply. */
+  diagonal?(): Float64Array;
+  /** A preconditioner z ≈ A⁻¹·r (e.g. a near-field block solve); overrides the diagonal when present. */
+  precondition?(r: Float64Array, z: Float64Array): void;
+}
+
+/** A dense operator over a row-major n×n matrix. */
+export function denseOperator(n: number, matrix: Float64Array): LinearOperator {
+  return {
+    n,
+    matrix,
+    apply(x, y) {
+      for (let i = 0; i < n; i++) {
+        let s = 0;
+        const row = i * n;
+        for (let j = 0; j < n; j++) s += matrix[row + j] * x[j];
+        y[i] = s;
+      }
+    },
+    diagonal() {
+      const d = new Float64Array(n);
+      for (let i = 0; i < n; i++) d[i] = matrix[i * n + i];
+      return d;
+    },
+  };
+}
+
+export interface LinearSolveOptions {
+  /** Warm starts, one per right-hand side (iterative solvers; direct ones ignore them). */
+  initial?: (Float64Array | null | undefined)[];
+  /** Relative residual at which iterative solvers stop (default 1e-10). */
+  tolerance?: number;
+  /** Polled between steps; when it returns true the solve stops and returns null. */
+  isCancelled?: () => boolean;
+}
+
+export interface LinearSolver {
+  /** The method's name, for stats ("dense-lu", "dense-gmres", ...). */
+  readonly name: string;
+  /** Solves A·x = b for each right-hand side; null when cancelled. Direct solvers factor once and reuse it. */
+  solve(rhs: Float64Array[], options?: LinearSolveOptions): Float64Array[] | null;
+  /** Iterations used by the last solve, per right-hand side (iterative solvers). */
+  readonly iterations: number[];
+}
+
+export type SolverKind = 'dense-lu' | 'dense-gmres' | (string & {});
+
+/** Above this size a dense matrix is solved iteratively (O(N²) per iteration) rather than by LU (O(N³)). */
+export const LU_MAX_UNKNOWNS = 1500;
+
+export interface SolverPreference {
+  /** Force a method; 'auto' (default) lets chooseSolver decide. */
+  kind?: SolverKind | 'auto';
+}
+
+/**
+ * Picks the solver for n unknowns: dense LU up to LU_MAX_UNKNOWNS (factor once, then every new
+ * right-hand side is a cheap back-substitution), dense GMRES above it.
+ */
+export function chooseSolver(n: number, preference: SolverPreference = {}): SolverKind {
+  if (preference.kind && preference.kind !== 'auto') return preference.kind;
+  return n <= LU_MAX_UNKNOWNS ? 'dense-lu' : 'dense-gmres';
+}
+
+/** Whether a method needs the dense matrix assembled. */
+export function needsDenseMatrix(kind: SolverKind): boolean {
+  return kind === 'dense-lu' || kind === 'dense-gmres' || (factories.get(kind)?.needsDense ?? true);
+}
+
+interface SolverFactory {
+  needsDense: boolean;
+  create(op: LinearOperator): LinearSolver;
+}
+const factories = new Map<string, SolverFactory>();
+
+/** Makes a new method available to createSolver (for solvers that live in other modules). */
+export function registerSolver(kind: string, needsDense: boolean, create: (op: LinearOperator) => LinearSolver): void {
+  factories.set(kind, { needsDense, create });
+}
+
+/** Builds a solver of the given kind for op. Throws only on a programming error (unknown kind). */
+export function createSolver(op: LinearOperator, kind: SolverKind = chooseSolver(op.n)): LinearSolver {
+  if (kind === 'dense-lu') return denseLuSolver(op);
+  if (kind === 'dense-gmres') return gmresSolver(op, 'dense-gmres');
+  const factory = factories.get(kind);
+  if (!factory) throw new Error(`unknown solver kind ${kind}`);
+  return factory.create(op);
+}
+
+/** Direct solver: LU with partial pivoting, factored lazily on the first solve and kept. */
+function denseLuSolver(op: LinearOperator): LinearSolver {
+  if (!op.matrix) throw new Error('dense-lu needs a dense matrix');
+  const matrix = op.matrix;
+  let factors: ReturnType<typeof luFactor> | null = null;
+  return {
+    name: 'dense-lu',
+    iterations: [],
+    solve(rhs, options) {
+      if (!factors) {
+        // The factorization overwrites its input: keep the operator's matrix intact.
+        factors = luFactor(op.n, Float64Array.from(matrix), options?.isCancelled);
+        if (!factors) return null;
+      }
+      return rhs.map((b) => luSolve(factors!, b));
+    },
+  };
+}
+
+/** Iterative solver: restarted GMRES, preconditioned by op.precondition or else by the diagonal. */
+export function gmresSolver(op: LinearOperator, name: string): LinearSolver {
+  let precondition = op.precondition?.bind(op);
+  if (!precondition && op.diagonal) {
+    const d = op.diagonal();
+    const inv = d.map((v) => (v !== 0 ? 1 / v : 1));
+    precondition = (r, z) => {
+      for (let i = 0; i < r.length; i++) z[i] = r[i] * inv[i];
+    };
+  }
+  const solver: LinearSolver = {
+    name,
+    iterations: [],
+    solve(rhs, options) {
+      const out: Float64Array[] = [];
+      solver.iterations.length = 0;
+      for (let k = 0; k < rhs.length; k++) {
+        const r = gmres(op, rhs[k], {
+          initial: options?.initial?.[k] ?? undefined,
+          tolerance: options?.tolerance ?? 1e-10,
+          precondition,
+          isCancelled: options?.isCancelled,
+        });
+        if (!r) return null;
+        solver.iterations.push(r.iterations);
+        out.push(r.x);
+      }
+      return out;
+    },
+  };
+  return solver;
+}
