@@ -1,0 +1,120 @@
+// The 3d boundary-element system: flat panels with constant charge density, collocation at centroids,
+// ground planes by images.
+//
+// Unknowns are scaled densities x_j = σ_j/(ε0·εr) (V/m: on a closed conductor this is the normal
+// surface field itself), so the system does not depend on the medium:
+//   φ(r) = Σ_j x_j · (1/4π) · Σ_images sign · I_j(image(r)),    A_ij = φ-kernel at centroid i,
+// with I_j = ∫_Tj 1/R dA (server/src/engine/kernels/triangle.ts). Reflecting the observation point
+// instead of the panel gives the same integral, since every image is an isometry.
+import type { Mesh } from '../mesh/types';
+import { panelGradient, panelPotential, preparePanels, type Panels } from '../kernels/triangle';
+import { reflect, type Image } from './images';
+
+export const INV_4PI = 1 / (4 * Math.PI);
+
+export interface Bem3dSystem {
+  mesh: Mesh;
+  panels: Panels;
+  images: Image[];
+  /** Collocation points (the panel centroids), 3 per panel. */
+  points: Float64Array;
+  n: number;
+}
+
+export function createSystem(mesh: Mesh, images: Image[]): Bem3dSystem {
+  const panels = preparePanels(mesh);
+  return { mesh, panels, images, points: panels.centroid, n: panels.count };
+}
+
+/** One matrix entry A_ij. */
+export function entry(sys: Bem3dSystem, i: number, j: number): number {
+  const p = sys.points;
+  const r = [0, 0, 0];
+  let sum = 0;
+  for (const im of sys.images) {
+    reflect(im, p[3 * i], p[3 * i + 1], p[3 * i + 2], r);
+    sum += im.sign * panelPotential(sys.panels, j, r[0], r[1], r[2]);
+  }
+  return sum * INV_4PI;
+}
+
+/** The dense matrix, row-major; null when cancelled (polled every few rows). */
+export function assembleDense(sys: Bem3dSystem, isCancelled?: () => boolean): Float64Array | null {
+  const n = sys.n;
+  const A = new Float64Array(n * n);
+  const P = sys.panels;
+  const p = sys.points;
+  const r = [0, 0, 0];
+  for (let i = 0; i < n; i++) {
+    if ((i & 63) === 0 && isCancelled?.()) return null;
+    const row = i * n;
+    for (const im of sys.images) {
+      reflect(im, p[3 * i], p[3 * i + 1], p[3 * i + 2], r);
+      const x = r[0], y = r[1], z = r[2], s = im.sign * INV_4PI;
+      for (let j = 0; j < n; j++) A[row + j] += s * panelPotential(P, j, x, y, z);
+    }
+  }
+  return A;
+}
+
+/** Accuracy of far-field evaluation: 'precise' keeps the 7-point rule, 'grid' uses the centroid rule far away. */
+export type EvalMode = 'precise' | 'grid';
+/** Beyond this many panel diameters the 'grid' mode uses the one-point (centroid) rule: relative error ~1e-4 per panel. */
+export const GRID_FAR_RATIO = 8;
+
+/**
+ * Potential (V) and its gradient (V/m, so the field is its negative) at (x, y, z) of the scaled
+ * densities xs, written to out[0..3] as [φ, ∂φ/∂x, ∂φ/∂y, ∂φ/∂z]. On a panel's own plane the normal
+ * derivative is the principal value (the average of the two sides).
+ */
+export function surfacePotentialAndGradient(
+  sys: Bem3dSystem,
+  xs: Float64Array,
+  x: number,
+  y: number,
+  z: number,
+  out: Float64Array,
+  mode: EvalMode = 'precise',
+): void {
+  const P = sys.panels;
+  const c = P.centroid;
+  const r = [0, 0, 0];
+  const g = new Float64Array(3);
+  let phi = 0, gx = 0, gy = 0, gz = 0;
+  const farRatioSq = GRID_FAR_RATIO * GRID_FAR_RATIO;
+  for (const im of sys.images) {
+    reflect(im, x, y, z, r);
+    const rx = r[0], ry = r[1], rz = r[2];
+    let p = 0, ax = 0, ay = 0, az = 0;
+    for (let j = 0; j < P.count; j++) {
+      const w = xs[j];
+      if (w === 0) continue;
+      const dx = rx - c[3 * j], dy = ry - c[3 * j + 1], dz = rz - c[3 * j + 2];
+      const d2 = dx * dx + dy * dy + dz * dz;
+      if (mode === 'grid' && d2 > farRatioSq * P.diameter[j] * P.diameter[j]) {
+        const inv = 1 / Math.sqrt(d2);
+        const q = w * P.area[j] * inv;
+        p += q;
+        const q3 = q * inv * inv;
+        ax -= q3 * dx;
+        ay -= q3 * dy;
+        az -= q3 * dz;
+        continue;
+      }
+      p += w * panelPotential(P, j, rx, ry, rz);
+      panelGradient(P, j, rx, ry, rz, g);
+      ax += w * g[0];
+      ay += w * g[1];
+      az += w * g[2];
+    }
+    // The chain rule through the reflection: ∂/∂x_k of f(flip·x + shift) = flip_k·(∂f)_k.
+    phi += im.sign * p;
+    gx += im.sign * im.flip[0] * ax;
+    gy += im.sign * im.flip[1] * ay;
+    gz += im.sign * im.flip[2] * az;
+  }
+  out[0] = phi * INV_4PI;
+  out[1] = gx * INV_4PI;
+  out[2] = gy * INV_4PI;
+  out[3] = gz * INV_4PI;
+}
