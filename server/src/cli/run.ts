@@ -1,0 +1,266 @@
+// The CLI's commands as a function of arguments, an I/O port and the stages it calls, returning the exit
+// code. main.ts passes the real ones; tests can pass their own. Nothing here throws for anything a user
+// can type or any file they can point at: every failure becomes a one-line message and exit code 2.
+import type { Diagnostic, Scene } from '../../../grammar/scene';
+import type { Result } from '../engine/result';
+import { parseArgs, USAGE } from './args';
+import { countErrors, formatDiagnostic, sortDiagnostics } from './diagnostics';
+import { failureJson, resultJson, stringify } from './json';
+import { renderReport, SAFETY_CAUTION } from './report';
+import { renderSvg } from './svg';
+import { formatQuantity } from '../format/quantity';
+
+export const EXIT_CLEAN = 0;
+export const EXIT_ERRORS = 1;
+export const EXIT_FAILED = 2;
+
+/** Code of the diagnostic the CLI adds when a `limit` is broken and the solve did not report it itself. */
+export const LIMIT_BROKEN_CODE = 'VS601';
+
+export interface Io {
+  out(text: string): void;
+  err(text: string): void;
+  /** Throws (as node:fs does) when the file cannot be read. */
+  readFile(path: string): Uint8Array;
+  writeFile(path: string, data: string): void;
+}
+
+export interface AnalysisLike {
+  scene: Scene | null;
+  diagnostics: Diagnostic[];
+}
+
+export interface PreviewInput {
+  file: string;
+  scene: Scene;
+  result: Result;
+  diagnostics: Diagnostic[];
+}
+
+export interface Stages {
+  version: string;
+  analyzeText(text: string): AnalysisLike;
+  solveScene(scene: Scene): Result | null;
+  /** The `--html` export; absent until the preview page exists. */
+  renderPreviewHtml?: (input: PreviewInput) => string;
+  /** `voltscape lsp --stdio`; absent until the language server exists. */
+  startLanguageServer?: () => void;
+}
+
+export async function run(argv: readonly string[], io: Io, stages: Stages): Promise<number> {
+  const command = parseArgs(argv);
+  switch (command.kind) {
+    case 'help':
+      io.out(USAGE + '\n');
+      return EXIT_CLEAN;
+    case 'version':
+      io.out(`voltscape ${stages.version}\n`);
+      return EXIT_CLEAN;
+    case 'usage':
+      io.err(`voltscape: ${command.message}\n\n${USAGE}\n`);
+      return EXIT_FAILED;
+    case 'lsp':
+      if (!stages.startLanguageServer) {
+        io.err('voltscape: the language server is not part of this build\n');
+        return EXIT_FAILED;
+      }
+      stages.startLanguageServer();
+      return EXIT_CLEAN;
+    case 'check':
+      return check(command.files, io, stages);
+    case 'solve':
+      return solve(command, io, stages);
+  }
+}
+
+// ---- reading a scene file ----
+
+type Read = { ok: true; text: string } | { ok: false; message: string };
+
+/** A scene file as text, or why it cannot be one: missing, unreadable, not UTF-8 text, or empty. */
+export function readScene(io: Io, path: string): Read {
+  let bytes: Uint8Array;
+  try {
+    bytes = io.readFile(path);
+  } catch (error) {
+    return { ok: false, message: `cannot read ${path}: ${describeFsError(error)}` };
+  }
+  if (bytes.includes(0)) return { ok: false, message: `${path} is not a text file (it holds NUL bytes)` };
+  let text: string;
+  try {
+    text = new TextDecoder('utf-8', { fatal: true, ignoreBOM: false }).decode(bytes);
+  } catch {
+    return { ok: false, message: `${path} is not UTF-8 text` };
+  }
+  if (text.trim() === '') return { ok: false, message: `${path} is empty: there is no scene to read` };
+  return { ok: true, text };
+}
+
+function describeFsError(error: unknown): string {
+  const code = (error as { code?: string } | null)?.code;
+  switch (code) {
+    case 'ENOENT':
+      return 'no such file';
+    case 'EISDIR':
+      return 'it is a directory';
+    case 'EACCES':
+    case 'EPERM':
+      return 'permission denied';
+    default:
+      return firstLine(error);
+  }
+}
+
+export function firstLine(error: unknown): string {
+  const text = error instanceof Error ? error.message : String(error);
+  return text.split('\n')[0] || 'unknown error';
+}
+
+/** Runs a stage, turning a throw into a message (a bug in a stage must still not print a stack trace). */
+function guarded<T>(what: string, f: () => T): { ok: true; value: T } | { ok: false; message: string } {
+  try {
+    return { ok: true, value: f() };
+  } catch (error) {
+    return { ok: false, message: `internal error while ${what}: ${firstLine(error)}` };
+  }
+}
+
+// ---- limits ----
+
+/** The highest peak surface field of a result, V/m. */
+function highestPeak(result: Result): { field: number; electrode: string } | null {
+  let best: { field: number; electrode: string } | null = null;
+  for (const e of result.electrodes) if (Number.isFinite(e.maxField) && (!best || e.maxField > best.field)) best = { field: e.maxField, electrode: e.name };
+  return best;
+}
+
+/**
+ * The solve's own diagnostics, plus one for a broken `limit` when the solve did not report it as an error.
+ * The CLI decides the exit code from these, so a broken limit always fails a check.
+ */
+export function solveDiagnostics(scene: Scene, result: Result): Diagnostic[] {
+  const out = [...result.diagnostics];
+  const peak = highestPeak(result);
+  if (scene.limit && peak && peak.field > scene.limit.field && countErrors(out) === 0) {
+    out.push({
+      code: LIMIT_BROKEN_CODE,
+      severity: 'error',
+      message:
+        `The peak field ${formatQuantity(peak.field, 'field')} on ${peak.electrode} is over the limit ` +
+        `${formatQuantity(scene.limit.field, 'field')}. ${SAFETY_CAUTION}`,
+      range: scene.limit.range,
+    });
+  }
+  return out;
+}
+
+// ---- check ----
+
+async function check(files: readonly string[], io: Io, stages: Stages): Promise<number> {
+  let exit = EXIT_CLEAN;
+  let errors = 0;
+  let warnings = 0;
+  let brokenLimit = false;
+  for (const file of files) {
+    const read = readScene(io, file);
+    if (!read.ok) {
+      io.err(`voltscape: ${read.message}\n`);
+      exit = EXIT_FAILED;
+      continue;
+    }
+    const analysed = guarded(`analysing ${file}`, () => stages.analyzeText(read.text));
+    if (!analysed.ok) {
+      io.err(`voltscape: ${analysed.message}\n`);
+      exit = EXIT_FAILED;
+      continue;
+    }
+    const diagnostics = [...analysed.value.diagnostics];
+    const scene = analysed.value.scene;
+    let failed = false;
+    if (scene && scene.limit && countErrors(diagnostics) === 0) {
+      // A `limit` is a design rule: test it, which needs a solve.
+      const solved = guarded(`solving ${file}`, () => stages.solveScene(scene));
+      if (!solved.ok) {
+        io.err(`voltscape: ${solved.message}\n`);
+        failed = true;
+      } else if (solved.value === null) {
+        io.err(`voltscape: ${file}: could not solve the scene to test its limit\n`);
+        failed = true;
+      } else {
+        const extra = solveDiagnostics(scene, solved.value);
+        if (extra.some((d) => d.severity === 'error')) brokenLimit = true;
+        diagnostics.push(...extra);
+      }
+    }
+    for (const d of sortDiagnostics(diagnostics)) io.out(formatDiagnostic(file, d) + '\n');
+    errors += countErrors(diagnostics);
+    warnings += diagnostics.filter((d) => d.severity === 'warning').length;
+    if (failed) exit = EXIT_FAILED;
+    else if (countErrors(diagnostics) > 0 && exit === EXIT_CLEAN) exit = EXIT_ERRORS;
+  }
+  io.err(`${files.length} ${files.length === 1 ? 'file' : 'files'} checked: ${plural(errors, 'error')}, ${plural(warnings, 'warning')}\n`);
+  if (brokenLimit) io.err(`${SAFETY_CAUTION}\n`);
+  return exit;
+}
+
+function plural(n: number, word: string): string {
+  return `${n} ${word}${n === 1 ? '' : 's'}`;
+}
+
+// ---- solve ----
+
+interface SolveCommand {
+  file: string;
+  json: boolean;
+  grids: boolean;
+  svg: string | null;
+  html: string | null;
+}
+
+async function solve(cmd: SolveCommand, io: Io, stages: Stages): Promise<number> {
+  const fail = (message: string, diagnostics: Diagnostic[] = []): number => {
+    if (cmd.json) io.out(stringify(failureJson(cmd.file, message, diagnostics)));
+    else for (const d of sortDiagnostics(diagnostics)) io.out(formatDiagnostic(cmd.file, d) + '\n');
+    io.err(`voltscape: ${message}\n`);
+    return EXIT_FAILED;
+  };
+  if (cmd.html && !stages.renderPreviewHtml) return fail('--html is not available in this build yet');
+  const read = readScene(io, cmd.file);
+  if (!read.ok) return fail(read.message);
+  const analysed = guarded(`analysing ${cmd.file}`, () => stages.analyzeText(read.text));
+  if (!analysed.ok) return fail(analysed.message);
+  const { scene, diagnostics } = analysed.value;
+  const errors = countErrors(diagnostics);
+  if (errors > 0 || !scene) return fail(`${cmd.file} has ${plural(errors, 'error')}: not solved`, diagnostics);
+  const solved = guarded(`solving ${cmd.file}`, () => stages.solveScene(scene));
+  if (!solved.ok) return fail(solved.message, diagnostics);
+  if (solved.value === null) return fail(`could not solve ${cmd.file} (the solver gave no result for this scene)`, diagnostics);
+  const result: Result = { ...solved.value, diagnostics: solveDiagnostics(scene, solved.value) };
+
+  if (cmd.json) io.out(stringify(resultJson({ file: cmd.file, scene, result, diagnostics, grids: cmd.grids })));
+  else io.out(renderReport({ file: cmd.file, scene, result, diagnostics }));
+
+  const outputs: [string, () => string][] = [];
+  if (cmd.svg) outputs.push([cmd.svg, () => renderSvg({ title: scene.title ?? cmd.file, subtitle: subtitle(scene), result })]);
+  if (cmd.html && stages.renderPreviewHtml) {
+    const render = stages.renderPreviewHtml;
+    outputs.push([cmd.html, () => render({ file: cmd.file, scene, result, diagnostics })]);
+  }
+  for (const [path, render] of outputs) {
+    const made = guarded(`drawing ${path}`, render);
+    if (!made.ok) return fail(made.message);
+    try {
+      io.writeFile(path, made.value);
+    } catch (error) {
+      return fail(`cannot write ${path}: ${describeFsError(error)}`);
+    }
+    io.err(`wrote ${path}\n`);
+  }
+  return countErrors(result.diagnostics) > 0 ? EXIT_ERRORS : EXIT_CLEAN;
+}
+
+function subtitle(scene: Scene): string {
+  const medium = scene.medium.name ?? `εr ${scene.medium.permittivity}`;
+  const counts = `${plural(scene.electrodes.length, 'electrode')}, ${plural(scene.charges.length, 'free charge')}`;
+  return `${scene.space} · ${medium} · ${counts}`;
+}
