@@ -40,12 +40,14 @@ export function gradedPoints(
   minCount = 1,
 ): number[] {
   const hStart = size(0), hEnd = size(length);
-  // Linear growth of the size with distance d from the edge, h(d) = h_e + (GROWTH − 1)·d, is the
-  // continuous form of a geometric sequence of panels with ratio GROWTH.
+  // Steps h_e·q^k (q = GROWTH) reach distance d = h_e(q^k − 1)/(q − 1) after k steps, so the step
+  // count per unit length is dk/dd = (q − 1)/(ln q·(h_e + (q − 1)d)): equidistributing with the local
+  // size g(d) = (h_e + (q − 1)d)·ln q/(q − 1) reproduces the geometric sequence exactly.
+  const shape = Math.log(GROWTH) / (GROWTH - 1);
   const graded = (s: number, h: number) => {
     let g = h;
-    if (gradeStart) g = Math.min(g, EDGE_RATIO * hStart + (GROWTH - 1) * s);
-    if (gradeEnd) g = Math.min(g, EDGE_RATIO * hEnd + (GROWTH - 1) * (length - s));
+    if (gradeStart) g = Math.min(g, (EDGE_RATIO * hStart + (GROWTH - 1) * s) * shape);
+    if (gradeEnd) g = Math.min(g, (EDGE_RATIO * hEnd + (GROWTH - 1) * (length - s)) * shape);
     return g;
   };
   // Sample finely enough to resolve the smallest graded panel.

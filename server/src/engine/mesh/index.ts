@@ -27,7 +27,7 @@ export const PRESET_FACTOR = { coarse: 0.22, normal: 0.11, fine: 0.055 } as cons
 /** Fewest segments around any circle at each preset (a thin wire's cross-section). */
 export const PRESET_SEGMENTS = { coarse: 6, normal: 12, fine: 24 } as const;
 /** A guard against runaway sizes: beyond this many panels the whole mesh is coarsened uniformly. */
-export const MAX_PANELS = 400_000;
+export const MAX_PANELS = 200_000;
 
 export interface MeshPlan {
   sizeAt: SizeAt;
