@@ -1,0 +1,384 @@
+// The parser: one CstParser instance, reused for every statement of every parse.
+// The grammar is deliberately generic: every statement is a keyword, an optional name and head word,
+// then `attribute value` pairs. What belongs where is decided by analysis, which gives far better
+// messages ("a disc cannot be hollow") than a grammar error could.
+import { CstParser, EOF, tokenMatcher, type CstNode, type IParserErrorMessageProvider, type IToken, type TokenType } from 'chevrotain';
+import * as T from './lexer';
+import { isReal, statementsFromCst, tokenRange, type Statement } from './ast';
+import { diagnostic } from './diagnostics';
+import type { Diagnostic } from './scene';
+import { closest } from './units';
+
+/** Readable text for a token type in our messages. */
+export function describeTokenType(t: TokenType): string {
+  if (t === EOF) return 'the end of the statement';
+  return t.LABEL ?? t.name;
+}
+
+function describeToken(tok: IToken): string {
+  if (tok.tokenType === EOF) return 'the end of the statement';
+  return `'${tok.image}'`;
+}
+
+function listExpected(types: TokenType[]): string {
+  const labels = [...new Set(types.map(describeTokenType))];
+  if (labels.length <= 1) return labels[0] ?? 'something else';
+  if (labels.length > 5) return labels.slice(0, 5).join(', ') + ' or more';
+  return labels.slice(0, -1).join(', ') + ' or ' + labels[labels.length - 1];
+}
+
+const messages: IParserErrorMessageProvider = {
+  buildMismatchTokenMessage({ expected, actual }) {
+    return `Expected ${describeTokenType(expected)} but found ${describeToken(actual)}.`;
+  },
+  buildNotAllInputParsedMessage({ firstRedundant }) {
+    return `Unexpected ${describeToken(firstRedundant)}: expected an attribute or the end of the statement.`;
+  },
+  buildNoViableAltMessage({ expectedPathsPerAlt, actual }) {
+    const firsts = expectedPathsPerAlt.flatMap((alt) => alt.map((path) => path[0])).filter((t): t is TokenType => !!t);
+    return `Expected ${listExpected(firsts)} but found ${describeToken(actual[0])}.`;
+  },
+  buildEarlyExitMessage({ expectedIterationPaths, actual }) {
+    const firsts = expectedIterationPaths.map((p) => p[0]).filter((t): t is TokenType => !!t);
+    return `Expected ${listExpected(firsts)} but found ${describeToken(actual[0])}.`;
+  },
+};
+
+class VscapeParser extends CstParser {
+  constructor() {
+    super(T.allTokens, { recoveryEnabled: true, errorMessageProvider: messages, maxLookahead: 3 });
+    this.performSelfAnalysis();
+  }
+
+  /** One or more statements: the tokens of one chunk (see chunkStatements). */
+  public statements = this.RULE('statements', () => {
+    this.MANY(() => this.SUBRULE(this.statement));
+  });
+
+  public statement = this.RULE('statement', () => {
+    this.OR([
+      { ALT: () => this.SUBRULE(this.sceneStatement) },
+      { ALT: () => this.SUBRULE(this.spaceStatement) },
+      { ALT: () => this.SUBRULE(this.mediumStatement) },
+      { ALT: () => this.SUBRULE(this.meshStatement) },
+      { ALT: () => this.SUBRULE(this.letStatement) },
+      { ALT: () => this.SUBRULE(this.electrodeStatement) },
+      { ALT: () => this.SUBRULE(this.groundStatement) },
+      { ALT: () => this.SUBRULE(this.chargeStatement) },
+      { ALT: () => this.SUBRULE(this.sliceStatement) },
+      { ALT: () => this.SUBRULE(this.probeStatement) },
+      { ALT: () => this.SUBRULE(this.limitStatement) },
+      { ALT: () => this.SUBRULE(this.sweepStatement) },
+    ]);
+  });
+
+  private sceneStatement = this.RULE('sceneStatement', () => {
+    this.CONSUME(T.SceneKw);
+    this.OPTION(() => this.CONSUME(T.StringLiteral));
+  });
+
+  private spaceStatement = this.RULE('spaceStatement', () => {
+    this.CONSUME(T.SpaceKw);
+    this.OPTION(() => this.OR([{ ALT: () => this.CONSUME(T.SpaceWord) }, { ALT: () => this.CONSUME(T.Identifier) }]));
+  });
+
+  private mediumStatement = this.RULE('mediumStatement', () => {
+    this.CONSUME(T.MediumKw);
+    this.OPTION(() => this.CONSUME(T.Identifier));
+    this.SUBRULE(this.attributes);
+  });
+
+  private meshStatement = this.RULE('meshStatement', () => {
+    this.CONSUME(T.MeshKw);
+    this.OPTION(() => this.CONSUME(T.PresetWord));
+    this.SUBRULE(this.attributes);
+  });
+
+  private letStatement = this.RULE('letStatement', () => {
+    this.CONSUME(T.LetKw);
+    this.CONSUME(T.Identifier);
+    this.CONSUME(T.Equals);
+    this.SUBRULE(this.expression);
+  });
+
+  private electrodeStatement = this.RULE('electrodeStatement', () => {
+    this.CONSUME(T.ElectrodeKw);
+    this.CONSUME(T.Identifier);
+    this.SUBRULE(this.shapeWord);
+    this.MANY(() => this.SUBRULE(this.pointList));
+    this.SUBRULE(this.attributes);
+  });
+
+  private groundStatement = this.RULE('groundStatement', () => {
+    this.CONSUME(T.GroundKw);
+    this.CONSUME(T.PlaneKw);
+    this.SUBRULE(this.attributes);
+  });
+
+  private chargeStatement = this.RULE('chargeStatement', () => {
+    this.CONSUME(T.ChargeKw);
+    this.CONSUME(T.Identifier);
+    this.SUBRULE(this.kindWord);
+    this.SUBRULE(this.attributes);
+  });
+
+  private sliceStatement = this.RULE('sliceStatement', () => {
+    this.CONSUME(T.SliceKw);
+    this.OPTION(() => this.CONSUME(T.PlaneWord));
+    this.SUBRULE(this.attributes);
+  });
+
+  private probeStatement = this.RULE('probeStatement', () => {
+    this.CONSUME(T.ProbeKw);
+    this.CONSUME(T.Identifier);
+    this.SUBRULE(this.kindWord);
+    this.SUBRULE(this.attributes);
+  });
+
+  private limitStatement = this.RULE('limitStatement', () => {
+    this.CONSUME(T.LimitKw);
+    this.SUBRULE(this.attributes);
+  });
+
+  private sweepStatement = this.RULE('sweepStatement', () => {
+    this.CONSUME(T.SweepKw);
+    this.CONSUME(T.Identifier);
+    this.SUBRULE(this.attributes);
+  });
+
+  /** A shape word; a plain name is accepted so analysis can suggest the right word. */
+  private shapeWord = this.RULE('shapeWord', () => {
+    this.OR([{ ALT: () => this.CONSUME(T.ShapeWord) }, { ALT: () => this.CONSUME(T.Identifier) }]);
+  });
+
+  /** A charge or probe kind; a plain name is accepted so analysis can suggest the right word. */
+  private kindWord = this.RULE('kindWord', () => {
+    this.OR([{ ALT: () => this.CONSUME(T.KindWord) }, { ALT: () => this.CONSUME(T.Identifier) }]);
+  });
+
+  /** A point of a `revolve` or `polygon` profile: a tuple with an optional unit. */
+  private pointList = this.RULE('pointList', () => {
+    this.SUBRULE(this.group);
+    this.OPTION(() => this.CONSUME(T.Unit));
+  });
+
+  private attributes = this.RULE('attributes', () => {
+    this.MANY(() => this.SUBRULE(this.attribute));
+  });
+
+  /** `hollow`, `floating`, or `name value?`; an unknown name is accepted and reported by analysis. */
+  private attribute = this.RULE('attribute', () => {
+    this.OR([
+      { ALT: () => this.CONSUME(T.FlagName) },
+      {
+        ALT: () => {
+          this.OR2([{ ALT: () => this.CONSUME(T.AttrName) }, { ALT: () => this.CONSUME(T.Identifier) }]);
+          this.OPTION(() => this.SUBRULE(this.value));
+        },
+      },
+    ]);
+  });
+
+  /** An axis (`normal z`), an axis equation (`at y = 0`), or an expression. */
+  private value = this.RULE('value', () => {
+    this.OR([
+      {
+        ALT: () => {
+          this.CONSUME(T.AxisWord);
+          this.OPTION(() => {
+            this.CONSUME(T.Equals);
+            this.SUBRULE(this.expression);
+          });
+        },
+      },
+      { ALT: () => this.SUBRULE2(this.expression) },
+    ]);
+  });
+
+  public expression = this.RULE('expression', () => {
+    this.SUBRULE(this.multiplicative);
+    this.MANY(() => {
+      this.CONSUME(T.AdditiveOp);
+      this.SUBRULE2(this.multiplicative);
+    });
+  });
+
+  private multiplicative = this.RULE('multiplicative', () => {
+    this.SUBRULE(this.unary);
+    this.MANY(() => {
+      this.CONSUME(T.MultOp);
+      this.SUBRULE2(this.unary);
+    });
+  });
+
+  private unary = this.RULE('unary', () => {
+    this.OR([
+      {
+        ALT: () => {
+          this.CONSUME(T.AdditiveOp);
+          this.SUBRULE(this.unary);
+        },
+      },
+      { ALT: () => this.SUBRULE(this.postfix) },
+    ]);
+  });
+
+  private postfix = this.RULE('postfix', () => {
+    this.SUBRULE(this.primary);
+    this.OPTION(() => this.CONSUME(T.Unit));
+  });
+
+  private primary = this.RULE('primary', () => {
+    this.OR([
+      { ALT: () => this.CONSUME(T.NumberLiteral) },
+      { ALT: () => this.CONSUME(T.Identifier) },
+      {
+        ALT: () => {
+          this.CONSUME(T.FuncName);
+          this.SUBRULE(this.group);
+        },
+      },
+      { ALT: () => this.SUBRULE2(this.group) },
+    ]);
+  });
+
+  /** `( expr, expr, ... )`: a parenthesised expression, a tuple, or a function's arguments. */
+  private group = this.RULE('group', () => {
+    this.CONSUME(T.LParen);
+    this.SUBRULE(this.expression);
+    this.MANY(() => {
+      this.CONSUME(T.Comma);
+      this.SUBRULE2(this.expression);
+    });
+    this.CONSUME(T.RParen);
+  });
+}
+
+/** The single parser instance; `parseStatements` resets its input for each chunk. */
+export const parser = new VscapeParser();
+
+export interface ChunkParse {
+  cst: CstNode;
+  errors: { message: string; token: IToken; previous: IToken | undefined; kind: string }[];
+}
+
+/** Parses the tokens of one chunk (one or more statements). */
+export function parseStatements(tokens: IToken[]): ChunkParse {
+  parser.input = tokens;
+  const cst = parser.statements();
+  const errors = parser.errors.map((e) => ({
+    message: e.message,
+    token: e.token,
+    previous: (e as { previousToken?: IToken }).previousToken,
+    kind: e.name,
+  }));
+  return { cst, errors };
+}
+
+// ---- whole-file parsing: split into statements, parse each, collect diagnostics ----
+
+/** Statement keywords, which start a new statement when they begin a line. */
+const STATEMENT_WORDS = ['scene', 'space', 'medium', 'mesh', 'let', 'electrode', 'ground', 'charge', 'slice', 'probe', 'limit', 'sweep'];
+
+function startsLine(tokens: IToken[], i: number): boolean {
+  return i === 0 || tokens[i].startLine! > tokens[i - 1].endLine!;
+}
+
+/**
+ * Splits the tokens into chunks, each starting at a statement keyword at the start of a line, so a
+ * mistake in one statement never hides the next. `charge` at the start of a line continues an
+ * electrode (its drive, `charge Q`) unless it is followed by a fresh name and a kind; a word at the
+ * start of a line that is one typo away from a statement keyword starts a (broken) chunk of its own.
+ */
+export function chunkStatements(tokens: IToken[]): IToken[][] {
+  const chunks: IToken[][] = [];
+  const letNames = new Set<string>();
+  let current: IToken[] = [];
+  for (let i = 0; i < tokens.length; i++) {
+    const t = tokens[i];
+    if (t.tokenType === T.LetKw && tokens[i + 1]?.tokenType === T.Identifier) letNames.add(tokens[i + 1].image);
+    let starts = false;
+    if (startsLine(tokens, i) && current.length > 0) {
+      if (t.tokenType === T.ChargeKw) starts = !continuesElectrode(tokens, i, current, letNames);
+      else if (tokenMatcher(t, T.StatementKw)) starts = true;
+      else if (t.tokenType === T.Identifier && !letNames.has(t.image)) starts = nearStatementWord(t.image) !== null && tokens[i + 1]?.tokenType === T.Identifier;
+    }
+    if (starts) {
+      chunks.push(current);
+      current = [];
+    }
+    current.push(t);
+  }
+  if (current.length > 0) chunks.push(current);
+  return chunks;
+}
+
+function continuesElectrode(tokens: IToken[], i: number, current: IToken[], letNames: Set<string>): boolean {
+  if (current[0].tokenType !== T.ElectrodeKw) return false;
+  const next = tokens[i + 1];
+  if (!next || next.startLine !== tokens[i].startLine) return false;
+  if (next.tokenType !== T.Identifier) return true;
+  return letNames.has(next.image) && !tokenMatcher(tokens[i + 2] ?? next, T.KindWord);
+}
+
+/** The statement keyword one typo away from a word, or null. */
+export function nearStatementWord(word: string): string | null {
+  if (word.length < 3) return null;
+  return closest(word, STATEMENT_WORDS);
+}
+
+export interface ParsedText {
+  statements: Statement[];
+  diagnostics: Diagnostic[];
+  /** Tokens handed to the parser (no comments, no unterminated strings). */
+  tokens: IToken[];
+  comments: IToken[];
+}
+
+/** Lexes and parses a whole file; never throws for any text. */
+export function parseText(text: string): ParsedText {
+  const lexed = T.vscapeLexer.tokenize(text);
+  const diagnostics: Diagnostic[] = [];
+  for (const e of lexed.errors) {
+    const line = (e.line ?? 1) - 1;
+    const character = (e.column ?? 1) - 1;
+    const ch = text.substr(e.offset, 1);
+    diagnostics.push(
+      diagnostic('VS101', { start: { line, character }, end: { line, character: character + Math.max(1, e.length) } }, `Unexpected character '${ch}'${e.length > 1 ? ` (and ${e.length - 1} more)` : ''}: not part of the language.`),
+    );
+  }
+  const tokens: IToken[] = [];
+  for (const t of lexed.tokens) {
+    if (t.tokenType === T.UnterminatedString) {
+      diagnostics.push(diagnostic('VS102', tokenRange(t), 'This string has no closing quote; strings end on the same line.'));
+    } else tokens.push(t);
+  }
+  const statements: Statement[] = [];
+  for (const chunk of chunkStatements(tokens)) {
+    const first = chunk[0];
+    if (!tokenMatcher(first, T.StatementKw)) {
+      const near = first.tokenType === T.Identifier ? nearStatementWord(first.image) : null;
+      const message = near
+        ? `Unknown statement '${first.image}'. Did you mean '${near}'?`
+        : `'${first.image}' does not start a statement; a statement begins with a keyword such as electrode, charge, let or slice.`;
+      diagnostics.push(diagnostic('VS104', tokenRange(first), message, near ? { replacement: near } : undefined));
+      continue;
+    }
+    const parsed = parseStatements(chunk);
+    const seen = new Set<string>();
+    for (const e of parsed.errors) {
+      const at = isReal(e.token) ? e.token : chunk[chunk.length - 1];
+      const range = tokenRange(at);
+      const key = `${range.start.line}:${range.start.character}`;
+      if (seen.has(key)) continue;
+      seen.add(key);
+      const code = e.kind === 'NotAllInputParsedException' ? 'VS105' : 'VS103';
+      diagnostics.push(diagnostic(code, range, e.message));
+    }
+    for (const s of statementsFromCst(parsed.cst)) {
+      if (s.title) for (const r of s.title.badEscapes) diagnostics.push(diagnostic('VS106', r, 'Unknown escape: strings allow only \\" and \\\\.'));
+      statements.push(s);
+    }
+  }
+  return { statements, diagnostics, tokens, comments: lexed.groups.comments ?? [] };
+}
