@@ -51,6 +51,17 @@ export const DIAGNOSTIC_CODES: Record<string, CodeInfo> = {
   VS227: { severity: 'info', title: 'Reserved statement: parsed but not yet used', example: 'sweep drive from 1 kV to 5 kV steps 5' },
 
   // ---- VS3xx geometry (grammar/geometry-checks.ts) ----
+  VS301: { severity: 'error', title: 'Degenerate electrode shape (zero or negative size, zero normal or axis, major not above minor, from = to)', example: 'electrode a torus center (0, 0, 0) axis z major 5 mm minor 8 mm floating' },
+  VS302: { severity: 'error', title: 'Degenerate free charge (line from = to, ring of zero radius or zero axis)', example: 'charge q line from (0, 0, 0) mm to (0, 0, 0) mm density 1 nC/m' },
+  VS303: { severity: 'error', title: 'Electrodes with different drives overlap or touch', example: 'electrode a sphere center (0, 0, 0) radius 10 mm potential 1 kV\nelectrode b sphere center (15, 0, 0) mm radius 10 mm potential 0 V' },
+  VS304: { severity: 'warning', title: 'Electrodes with the same drive overlap or touch (they act as one conductor)', example: 'electrode a sphere center (0, 0, 0) radius 10 mm potential 1 kV\nelectrode b sphere center (20, 0, 0) mm radius 10 mm potential 1 kV' },
+  VS305: { severity: 'error', title: 'Free charge inside or on an electrode', example: 'electrode a sphere center (0, 0, 0) radius 10 mm floating\ncharge q point at (0, 0, 5) mm value 1 nC' },
+  VS306: { severity: 'error', title: 'Electrode crosses or touches the ground plane', example: 'electrode a sphere center (0, 0, 5) mm radius 10 mm potential 1 kV\nground plane at z = 0' },
+  VS307: { severity: 'error', title: 'More than one ground plane (only one is supported in this version)', example: 'ground plane at z = 0\nground plane at x = 1 m' },
+  VS308: { severity: 'warning', title: 'Slice that meets no electrode and no charge', example: 'electrode a sphere center (0, 0, 0) radius 10 mm potential 1 kV\nslice xy at z = 1 m from (-1, -1) m to (1, 1) m' },
+  VS309: { severity: 'warning', title: 'Probe far outside the scene (beyond its bounding box grown by its size)', example: 'electrode a sphere center (0, 0, 0) radius 10 mm potential 1 kV\nprobe p point at (0, 0, 1) m' },
+  VS310: { severity: 'warning', title: 'Probe inside a conductor (it reads the conductor’s potential and no field)', example: 'electrode a sphere center (0, 0, 0) radius 10 mm potential 1 kV\nprobe p point at (0, 0, 2) mm' },
+  VS311: { severity: 'error', title: 'Free charge on or across the ground plane', example: 'ground plane at z = 0\ncharge q line from (0, 0, -5) mm to (0, 0, 5) mm density 1 nC/m' },
 
   // ---- VS4xx physics after a solve (server/src/engine) ----
 
