@@ -64,6 +64,15 @@ export const DIAGNOSTIC_CODES: Record<string, CodeInfo> = {
   VS311: { severity: 'error', title: 'Free charge on or across the ground plane', example: 'ground plane at z = 0\ncharge q line from (0, 0, -5) mm to (0, 0, 5) mm density 1 nC/m' },
 
   // ---- VS4xx physics after a solve (server/src/engine) ----
+  VS401: { severity: 'error', title: 'Peak field on an electrode over the `limit` (design aid only; follow applicable standards, local codes and licensed practice)', example: 'electrode a sphere center (0, 0, 0) radius 1 mm potential 10 kV\nlimit field 1 kV/mm' },
+  VS402: { severity: 'warning', title: 'Peak field on an electrode over the medium\u2019s dielectric strength (design aid only; follow applicable standards, local codes and licensed practice)', example: 'medium air\nelectrode a sphere center (0, 0, 0) radius 1 mm potential 10 kV' },
+  VS403: { severity: 'warning', title: 'Mesh too coarse for the smallest gap (a gap narrower than a panel)', example: 'mesh size 5 mm\nelectrode a sphere center (0, 0, 0) radius 10 mm potential 1 kV\nelectrode b sphere center (22, 0, 0) mm radius 10 mm potential 0 V' },
+  VS404: { severity: 'warning', title: 'Floating electrode with nothing to charge it (no drive, no free charge)', example: 'electrode a sphere center (0, 0, 0) radius 10 mm floating' },
+  VS405: { severity: 'warning', title: 'Mesh coarsened to fit the panel limit', example: 'mesh size 0.05 mm\nelectrode a sphere center (0, 0, 0) radius 50 mm potential 1 kV' },
+  VS406: { severity: 'warning', title: 'Second ground plane on the same axis ignored by the solver', example: 'ground plane at z = 0\nground plane at z = 1 m' },
+  VS407: { severity: 'info', title: 'This space is not solved yet: no figures', example: 'space planar' },
+  VS408: { severity: 'warning', title: 'Slice grid reduced to fit the grid-cell limit', example: 'slice xz at y = 0 from (-1, -1) m to (1, 1) m cells 5000' },
+  VS409: { severity: 'warning', title: 'Drive equations singular: floating or fixed-charge potentials unresolved', example: '(an electrode with no capacitance; never expected for a meshable scene)' },
 
   // ---- VS5xx limits and settings (server/src/lsp) ----
   VS501: { severity: 'warning', title: 'Live solve stopped at the time limit (setting voltscape.maxSolveTime)', example: 'mesh size 0.2 mm\nelectrode a sphere center (0, 0, 0) radius 200 mm potential 1 kV' },
