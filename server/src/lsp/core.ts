@@ -1,0 +1,217 @@
+// The language server's core: the open documents, their analyses and latest results, the debounced
+// solve of each, and what to tell the editor. It never touches the connection: everything it says
+// goes through a Host, so it can run in-process in tests. Features (features/*.ts) read its state.
+import { TextDocument } from 'vscode-languageserver-textdocument';
+import type { Diagnostic as LspDiagnostic } from 'vscode-languageserver';
+import { analyzeText, hasErrors, type Analysis } from '../../../grammar/index';
+import type { Diagnostic } from '../../../grammar/scene';
+import type { Result } from '../engine/result';
+import { encodeResult } from '../engine/result-json';
+import {
+  ResultNotification,
+  SolveStatusNotification,
+  type ElectrodeLocation,
+  type NotificationSpec,
+  type ResultParams,
+  type SolveLevel,
+  type SolveStatusParams,
+} from '../protocol';
+import { documentDiagnostics } from './features/diagnostics';
+import { failureDiagnostic, timeLimitDiagnostic } from './limits';
+import { defaultSettings, type Settings } from './settings';
+import type { Solver } from './solver';
+
+/** What the core needs from outside: the editor connection in the server, a recorder in tests. */
+export interface Host {
+  publishDiagnostics(uri: string, version: number, diagnostics: LspDiagnostic[]): void;
+  notify<P>(type: NotificationSpec<P>, params: P): void;
+  log(message: string): void;
+}
+
+/** A solved result together with where its electrodes were written in the solved version. */
+export interface SolvedResult {
+  version: number;
+  level: SolveLevel;
+  result: Result;
+  electrodes: ElectrodeLocation[];
+  solveMs: number;
+  /** Whether it has been re-sent marked stale. */
+  staleAnnounced?: boolean;
+}
+
+export interface DocumentState {
+  uri: string;
+  document: TextDocument;
+  analysis: Analysis;
+  /** Diagnostics that need a solve (field limits, mesh warnings), for the version they were solved for. */
+  solveDiagnostics: { version: number; diagnostics: Diagnostic[] } | null;
+  /** The newest result, possibly of an older version. */
+  solved: SolvedResult | null;
+}
+
+/** A document state built from text alone, without solving: for features and their tests. */
+export function documentState(text: string, uri = 'file:///scene.vscape', version = 1): DocumentState {
+  const document = TextDocument.create(uri, 'vscape', version, text);
+  return { uri, document, analysis: analyzeText(text), solveDiagnostics: null, solved: null };
+}
+
+/** The electrode statements of an analysis, in scene order (the order of Result.electrodes). */
+export function electrodeLocations(analysis: Analysis): ElectrodeLocation[] {
+  return (analysis.scene?.electrodes ?? []).map((e) => ({ name: e.name, range: e.range, nameRange: e.nameRange }));
+}
+
+export class ServerCore {
+  private readonly documents = new Map<string, DocumentState>();
+  private readonly timers = new Map<string, ReturnType<typeof setTimeout>>();
+  settings: Settings = defaultSettings;
+
+  constructor(
+    private readonly host: Host,
+    private readonly solver: Solver,
+  ) {}
+
+  get(uri: string): DocumentState | undefined {
+    return this.documents.get(uri);
+  }
+
+  /** A document was opened or changed: analyse now, publish diagnostics, solve after the debounce. */
+  update(uri: string, text: string, version: number): DocumentState {
+    const previous = this.documents.get(uri);
+    const document = TextDocument.create(uri, 'vscape', version, text);
+    const analysis = analyzeText(text);
+    const state: DocumentState = {
+      uri,
+      document,
+      analysis,
+      solveDiagnostics: null,
+      solved: previous?.solved ?? null,
+    };
+    this.documents.set(uri, state);
+    this.publish(state);
+    this.scheduleSolve(state);
+    return state;
+  }
+
+  close(uri: string): void {
+    this.clearTimer(uri);
+    this.solver.cancel(uri);
+    this.documents.delete(uri);
+    this.host.publishDiagnostics(uri, 0, []);
+  }
+
+  /** New settings: re-solve every open document with them. */
+  configure(settings: Settings): void {
+    const changed = JSON.stringify(settings) !== JSON.stringify(this.settings);
+    this.settings = settings;
+    if (changed) for (const state of this.documents.values()) this.scheduleSolve(state);
+  }
+
+  /** The latest result of a document as a `voltscape/result` message, with its stale flag up to date. */
+  latestResult(uri: string): ResultParams | null {
+    const state = this.documents.get(uri);
+    return state?.solved ? this.resultParams(state, state.solved) : null;
+  }
+
+  dispose(): void {
+    for (const uri of this.timers.keys()) this.clearTimer(uri);
+    this.solver.dispose();
+  }
+
+  private publish(state: DocumentState): void {
+    this.host.publishDiagnostics(state.uri, state.document.version, documentDiagnostics(state));
+  }
+
+  private status(state: DocumentState, params: Omit<SolveStatusParams, 'uri' | 'version'>, version = state.document.version) {
+    this.host.notify(SolveStatusNotification, { uri: state.uri, version, ...params });
+  }
+
+  private isStale(state: DocumentState): boolean {
+    return !!state.solved && state.solved.version !== state.document.version;
+  }
+
+  private resultParams(state: DocumentState, solved: SolvedResult): ResultParams {
+    return {
+      uri: state.uri,
+      version: solved.version,
+      level: solved.level,
+      stale: this.isStale(state),
+      result: encodeResult(solved.result),
+      electrodes: solved.electrodes,
+      solveMs: solved.solveMs,
+    };
+  }
+
+  private clearTimer(uri: string): void {
+    const t = this.timers.get(uri);
+    if (t) clearTimeout(t);
+    this.timers.delete(uri);
+  }
+
+  private scheduleSolve(state: DocumentState): void {
+    const { uri } = state;
+    this.clearTimer(uri);
+    this.solver.cancel(uri);
+    const scene = state.analysis.scene;
+    if (!scene || hasErrors(state.analysis.diagnostics)) {
+      // Only error-free scenes are solved; the last picture stays, marked stale.
+      // The picture is re-sent once, marked stale, when it first becomes stale; later keystrokes only update the status.
+      if (state.solved && !state.solved.staleAnnounced) {
+        state.solved.staleAnnounced = true;
+        this.host.notify(ResultNotification, this.resultParams(state, state.solved));
+      }
+      this.status(state, { state: 'stale', message: 'The scene has errors; the picture shown is the last good one.' });
+      return;
+    }
+    this.status(state, { state: 'queued' });
+    const version = state.document.version;
+    const electrodes = electrodeLocations(state.analysis);
+    const statements = state.analysis.ast.statements;
+    const start = () => {
+      this.timers.delete(uri);
+      const seconds = this.settings.maxSolveTime;
+      let timedOut = false;
+      const deadline = setTimeout(() => {
+        timedOut = true;
+        this.solver.cancel(uri);
+      }, seconds * 1000);
+      /** Solve diagnostics of this version: the newest level's, plus the VS5xx remark if any. */
+      const finish = (current: DocumentState, remark: Diagnostic) => {
+        const levelDiagnostics = current.solved?.version === version ? current.solved.result.diagnostics : [];
+        current.solveDiagnostics = { version, diagnostics: [...levelDiagnostics, remark] };
+        this.publish(current);
+      };
+      this.status(state, { state: 'solving', level: 'coarse' });
+      this.solver.solve(
+        uri,
+        { scene, levels: ['coarse', 'full'], maxPanels: this.settings.maxPanels, maxGridCells: this.settings.maxGridCells },
+        {
+          onResult: (level, result, solveMs) => {
+            const current = this.documents.get(uri);
+            if (!current || current.document.version !== version) return;
+            current.solved = { version, level, result, electrodes, solveMs };
+            current.solveDiagnostics = { version, diagnostics: result.diagnostics };
+            this.publish(current);
+            this.host.notify(ResultNotification, this.resultParams(current, current.solved));
+            if (level === 'coarse') this.status(current, { state: 'solving', level: 'full' });
+          },
+          onDone: (outcome, message) => {
+            clearTimeout(deadline);
+            const current = this.documents.get(uri);
+            if (!current) return;
+            const isCurrent = current.document.version === version;
+            if (outcome === 'cancelled' && timedOut && isCurrent) {
+              finish(current, timeLimitDiagnostic(statements, seconds, current.solved?.version === version));
+              return this.status(current, { state: 'limited', message: `stopped after ${seconds} s` }, version);
+            }
+            if (outcome === 'failed') {
+              this.host.log(`solve failed for ${uri} v${version}: ${message ?? ''}`);
+              if (isCurrent) finish(current, failureDiagnostic(statements, message ?? 'unknown error'));
+            }
+            this.status(current, { state: outcome, ...(message ? { message } : {}) }, version);
+          },
+        },
+      );
+    };
+    this.timers.set(uri, setTimeout(start, this.settings.solveDelay));
+  }
+}

@@ -1,0 +1,31 @@
+// The solve worker (bundled to dist/solve-worker.js): one long-lived thread that owns the engine
+// cache. A job is cancelled when its document's generation slot moves on (a newer edit); the
+// engine polls that through isCancelled, so the worker is never killed and keeps its cache.
+import { parentPort, workerData } from 'node:worker_threads';
+import { createEngineCache } from '../engine/index';
+import type { Result } from '../engine/result';
+import { runSolveJob } from './solve-runner';
+import type { FromWorker, ToWorker, WorkerInit } from './worker-messages';
+
+const port = parentPort;
+if (port) {
+  const generations = new Int32Array((workerData as WorkerInit).generations);
+  const cache = createEngineCache();
+  port.on('message', (message: ToWorker) => {
+    if (message.type === 'dispose') return port.close();
+    const job = message;
+    const isCancelled = () => Atomics.load(generations, job.slot) !== job.generation;
+    runSolveJob(job, cache, isCancelled, (out: FromWorker) => port.postMessage(out, out.type === 'result' ? transferables(out.result) : []));
+  });
+}
+
+/** The slice grids' buffers, moved to the main thread rather than copied. */
+function transferables(result: Result): ArrayBuffer[] {
+  const buffers = new Set<ArrayBuffer>();
+  for (const s of result.slices) {
+    for (const a of [s.potential, s.fieldU, s.fieldV, s.fieldMagnitude, s.inside]) {
+      if (a && a.buffer instanceof ArrayBuffer) buffers.add(a.buffer);
+    }
+  }
+  return [...buffers];
+}

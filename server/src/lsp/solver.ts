@@ -1,0 +1,180 @@
+// The main thread's side of solving: hands jobs to the solve worker and routes its answers back.
+// A newer solve for a document cancels the older one by moving that document's generation slot
+// (shared memory the worker polls); answers of a superseded job are dropped here as well, so a
+// stale result can never arrive after a newer one.
+import { existsSync } from 'node:fs';
+import { join } from 'node:path';
+import { Worker } from 'node:worker_threads';
+import type { Scene } from '../../../grammar/scene';
+import { createEngineCache } from '../engine/index';
+import type { Result } from '../engine/result';
+import type { SolveLevel } from '../protocol';
+import { runSolveJob } from './solve-runner';
+import type { FromWorker, SolveJob } from './worker-messages';
+
+export interface SolveRequest {
+  scene: Scene;
+  levels: SolveLevel[];
+  maxPanels: number;
+  maxGridCells: number;
+}
+
+export interface SolveCallbacks {
+  /** One level finished for the newest job of this document. */
+  onResult(level: SolveLevel, result: Result, solveMs: number): void;
+  /** The job ended: all levels done, cancelled by a newer job, or failed. */
+  onDone(state: 'done' | 'cancelled' | 'failed', message?: string): void;
+}
+
+export interface Solver {
+  /** Starts solving a document; any earlier solve of the same document is cancelled. */
+  solve(uri: string, request: SolveRequest, callbacks: SolveCallbacks): void;
+  /** Cancels the document's solve, if any. */
+  cancel(uri: string): void;
+  dispose(): void;
+}
+
+const SLOTS = 256;
+
+/** Generation bookkeeping shared by both solvers: one Int32 slot per document, in shared memory. */
+class Generations {
+  readonly buffer = new SharedArrayBuffer(SLOTS * 4);
+  readonly slots = new Int32Array(this.buffer);
+  private slotOf = new Map<string, number>();
+  private nextSlot = 0;
+  private counter = 0;
+
+  slot(uri: string): number {
+    let s = this.slotOf.get(uri);
+    if (s === undefined) {
+      // More open documents than slots share a slot; they then cancel each other's solves (rare, harmless).
+      s = this.nextSlot++ % SLOTS;
+      this.slotOf.set(uri, s);
+    }
+    return s;
+  }
+  /** A fresh generation for the document; every older job of it is now cancelled. */
+  advance(uri: string): { slot: number; generation: number } {
+    const slot = this.slot(uri);
+    const generation = ++this.counter;
+    Atomics.store(this.slots, slot, generation);
+    return { slot, generation };
+  }
+  isCurrent(slot: number, generation: number): boolean {
+    return Atomics.load(this.slots, slot) === generation;
+  }
+}
+
+interface Pending {
+  slot: number;
+  generation: number;
+  callbacks: SolveCallbacks;
+}
+
+/** Solves in one long-lived worker thread (dist/solve-worker.js), which keeps the engine cache. */
+export class WorkerSolver implements Solver {
+  private generations = new Generations();
+  private pending = new Map<number, Pending>();
+  private worker: Worker | null = null;
+  private nextId = 1;
+  private crashes = 0;
+
+  constructor(
+    private readonly workerPath: string,
+    private readonly log: (message: string) => void = () => {},
+  ) {
+    // Start the worker now, so it has loaded by the time the first solve is asked for.
+    this.ensureWorker();
+  }
+
+  solve(uri: string, request: SolveRequest, callbacks: SolveCallbacks): void {
+    const { slot, generation } = this.generations.advance(uri);
+    const worker = this.ensureWorker();
+    if (!worker) return callbacks.onDone('failed', 'the solve worker stopped after repeated crashes');
+    const job: SolveJob = { type: 'solve', id: this.nextId++, slot, generation, ...request };
+    this.pending.set(job.id, { slot, generation, callbacks });
+    worker.postMessage(job);
+  }
+
+  cancel(uri: string): void {
+    this.generations.advance(uri);
+  }
+
+  dispose(): void {
+    const worker = this.worker;
+    this.worker = null;
+    if (worker) {
+      worker.removeAllListeners();
+      void worker.terminate();
+    }
+  }
+
+  private ensureWorker(): Worker | null {
+    if (this.worker) return this.worker;
+    if (this.crashes > 5) return null;
+    const worker = new Worker(this.workerPath, { workerData: { generations: this.generations.buffer } });
+    worker.unref();
+    worker.on('message', (message: FromWorker) => this.receive(message));
+    const fail = (why: string) => {
+      if (this.worker !== worker) return;
+      this.worker = null;
+      this.crashes++;
+      this.log(`solve worker stopped: ${why}`);
+      for (const [id, p] of this.pending) {
+        this.pending.delete(id);
+        p.callbacks.onDone('failed', `the solve worker stopped: ${why}`);
+      }
+    };
+    worker.on('error', (e) => fail(e instanceof Error ? e.message : String(e)));
+    worker.on('exit', (code) => fail(`exit code ${code}`));
+    this.worker = worker;
+    return worker;
+  }
+
+  private receive(message: FromWorker): void {
+    const p = this.pending.get(message.id);
+    if (!p) return;
+    const current = this.generations.isCurrent(p.slot, p.generation);
+    if (message.type === 'result') {
+      if (current) p.callbacks.onResult(message.level, message.result, message.solveMs);
+      return;
+    }
+    this.pending.delete(message.id);
+    p.callbacks.onDone(current ? message.state : 'cancelled', message.message);
+  }
+}
+
+/**
+ * Solves on the calling thread, one job per event-loop turn: for in-process tests, and a fallback
+ * when the worker bundle is missing. Cancellation works the same way, by generation.
+ */
+export class InlineSolver implements Solver {
+  private generations = new Generations();
+  private cache = createEngineCache();
+  private nextId = 1;
+
+  solve(uri: string, request: SolveRequest, callbacks: SolveCallbacks): void {
+    const { slot, generation } = this.generations.advance(uri);
+    const job: SolveJob = { type: 'solve', id: this.nextId++, slot, generation, ...request };
+    const isCancelled = () => !this.generations.isCurrent(slot, generation);
+    setImmediate(() =>
+      runSolveJob(job, this.cache, isCancelled, (m) => {
+        if (m.type === 'result') {
+          if (!isCancelled()) callbacks.onResult(m.level, m.result, m.solveMs);
+        } else callbacks.onDone(isCancelled() ? 'cancelled' : m.state, m.message);
+      }),
+    );
+  }
+  cancel(uri: string): void {
+    this.generations.advance(uri);
+  }
+  dispose(): void {}
+}
+
+/** The worker next to this bundle (dist/solve-worker.js), or an in-thread solver when it is missing. */
+export function createSolver(log: (message: string) => void): Solver {
+  const path = join(__dirname, 'solve-worker.js');
+  if (existsSync(path)) return new WorkerSolver(path, log);
+  log(`solve worker not found at ${path}; solving on the main thread`);
+  return new InlineSolver();
+}
