@@ -4,7 +4,7 @@
 import { contours } from 'd3-contour';
 import type { Frame } from './geometry';
 import { toPx } from './geometry';
-import type { SliceResult } from '../../server/src/engine/result';
+import type { Outline, SliceResult } from '../../server/src/engine/result';
 
 export type Ring = [number, number][];
 
@@ -109,4 +109,27 @@ export function pointAlong(line: [number, number][], t: number): { x: number; y:
     target -= seg;
   }
   return { x: line[0][0], y: line[0][1], angle: 0 };
+}
+
+/**
+ * Cross-sections traced from the slice's `inside` mask (the 0.5 isoline of each electrode's indicator),
+ * for electrodes that the result gives no outline for in this slice.
+ */
+export function outlinesFromMask(slice: SliceResult): Outline[] {
+  const have = new Set(slice.outlines.map((o) => o.electrode));
+  const found = new Set<number>();
+  for (let i = 0; i < slice.inside.length; i++) if (slice.inside[i] >= 0 && !have.has(slice.inside[i])) found.add(slice.inside[i]);
+  const generator = contours().size([slice.nu, slice.nv]);
+  const out: Outline[] = [];
+  for (const k of found) {
+    const indicator = new Float64Array(slice.inside.length);
+    for (let i = 0; i < indicator.length; i++) indicator[i] = slice.inside[i] === k ? 1 : 0;
+    const polygons = generator.contour(indicator as unknown as number[], 0.5).coordinates as unknown as Ring[][];
+    const paths: number[][] = [];
+    for (const polygon of polygons) {
+      for (const ring of polygon) paths.push(ring.flatMap(([x, y]) => [slice.u0 + x * slice.du, slice.v0 + y * slice.dv]));
+    }
+    if (paths.length > 0) out.push({ electrode: k, paths, closed: true });
+  }
+  return out;
 }

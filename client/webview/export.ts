@@ -6,6 +6,7 @@ export function svgText(svg: SVGSVGElement): string {
   copy.setAttribute('xmlns', 'http://www.w3.org/2000/svg');
   copy.removeAttribute('class');
   copy.removeAttribute('style');
+  copy.removeAttribute('data-frame');
   return '<?xml version="1.0" encoding="UTF-8"?>\n' + new XMLSerializer().serializeToString(copy);
 }
 

@@ -3,7 +3,7 @@
 // can be saved as a file.
 import type { Result, SliceResult } from '../../server/src/engine/result';
 import type { Palette } from './colours';
-import { contourGrid, pointAlong, polylineLength, polylinePath } from './contours';
+import { contourGrid, outlinesFromMask, pointAlong, polylineLength, polylinePath } from './contours';
 import { fieldLines } from './field-lines';
 import { formatField, formatLength, formatPotential, lengthAxisUnit, significant } from './format';
 import { axisNames, Frame, insideFrame, makeFrame, projectToSlice, toPx } from './geometry';
@@ -52,11 +52,17 @@ function potentialScale(result: Result, slice: SliceResult, palette: Palette): S
   for (let i = 0; i < values.length; i++) values[i] = Math.max(lo, Math.min(hi, slice.potential[i]));
   const maxAbs = Math.max(Math.abs(lo), Math.abs(hi)) || 1;
   const phi0 = maxAbs / 10;
-  const norm = Math.asinh(maxAbs / phi0);
+  const T = (v: number) => Math.asinh(v / phi0);
+  // Zero stays neutral when the potentials have both signs; a one-signed scene uses the whole ramp.
+  const shade = (v: number): number => {
+    if (lo >= 0 && hi > lo) return 0.12 + (0.88 * (T(v) - T(lo))) / (T(hi) - T(lo));
+    if (hi <= 0 && hi > lo) return -0.12 - (0.88 * (T(hi) - T(v))) / (T(hi) - T(lo));
+    return T(v) / T(maxAbs);
+  };
   return {
     levels,
     values,
-    colour: (v) => palette.potentialBand(Math.asinh(v / phi0) / norm),
+    colour: (v) => palette.potentialBand(shade(v)),
     label: (v) => formatPotential(v, 2),
     title: 'Potential',
   };
@@ -195,7 +201,9 @@ function outlinePath(f: Frame, paths: number[][], closed: boolean): string {
 /** Builds the picture for one slice of a result. */
 export function drawPicture(result: Result, sliceIndex: number, options: PictureOptions): Picture {
   const { palette } = options;
-  const slice = result.slices[sliceIndex];
+  const given = result.slices[sliceIndex];
+  // Electrodes with interior cells but no outline from the engine get one traced from the mask.
+  const slice: SliceResult = { ...given, outlines: [...given.outlines, ...outlinesFromMask(given)] };
   const f = makeFrame(slice);
   const width = f.left + f.width + LEGEND_WIDTH;
   const height = f.top + f.height + BOTTOM;
@@ -203,6 +211,8 @@ export function drawPicture(result: Result, sliceIndex: number, options: Picture
     xmlns: 'http://www.w3.org/2000/svg', viewBox: `0 0 ${px(width)} ${px(height)}`,
     width: px(width), height: px(height), 'font-family': 'system-ui, sans-serif', class: 'picture',
   });
+  // The plot's placement, for the page's own pointer mapping and for tests.
+  svg.setAttribute('data-frame', [f.left, f.top, f.width, f.height, f.u0, f.v0, f.u1, f.v1].join(' '));
   svgEl('title', {}, svg, options.title);
   svgEl('rect', { x: 0, y: 0, width: px(width), height: px(height), fill: palette.background }, svg);
   const clipId = 'plot-area';
@@ -307,9 +317,9 @@ export function drawPicture(result: Result, sliceIndex: number, options: Picture
     const [x, y] = toPx(f, q.u, q.v);
     const g = svgEl('g', { class: off ? 'peak peak-off-slice' : 'peak', 'data-electrode': index }, peakLayer);
     svgEl('circle', { cx: px(x), cy: px(y), r: 5.5, fill: off ? 'none' : palette.peak, stroke: palette.peak, 'stroke-width': 1.8, 'stroke-dasharray': off ? '2 2' : 'none' }, g);
-    const label = off ? `${e.name} peak ${value}, ${formatLength(Math.abs(q.off), 3)} off this slice` : `${e.name} peak ${value}`;
-    const anchorEnd = x > f.left + f.width * 0.6;
+    const label = off ? `${e.name} peak ${value} (${formatLength(Math.abs(q.off), 2)} off slice)` : `${e.name} peak ${value}`;
     const textWidth = label.length * 6.4;
+    const anchorEnd = x + 9 + textWidth > f.left + f.width && x - 9 - textWidth >= f.left;
     const tx = anchorEnd ? x - 9 : x + 9;
     const ty = freeY(anchorEnd ? tx - textWidth : tx, anchorEnd ? tx : tx + textWidth, y - 8);
     svgEl('text', {
