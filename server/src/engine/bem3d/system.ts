@@ -1,4 +1,5 @@
-// The 3d boundary-element system: flat panels with constant charge density, collocation at centroids,
+// The 3d boundary-element system: flat panels with constant charge density, collocation at the
+// centroids (or, for curved bodies, at the centroids moved onto the true surface: collocation.ts),
 // ground planes by images.
 //
 // Unknowns are scaled densities x_j = σ_j/(ε0·εr) (V/m: on a closed conductor this is the normal
@@ -16,14 +17,14 @@ export interface Bem3dSystem {
   mesh: Mesh;
   panels: Panels;
   images: Image[];
-  /** Collocation points (the panel centroids), 3 per panel. */
+  /** Collocation points (the panel centroids, or those given), 3 per panel. */
   points: Float64Array;
   n: number;
 }
 
-export function createSystem(mesh: Mesh, images: Image[]): Bem3dSystem {
+export function createSystem(mesh: Mesh, images: Image[], points?: Float64Array): Bem3dSystem {
   const panels = preparePanels(mesh);
-  return { mesh, panels, images, points: panels.centroid, n: panels.count };
+  return { mesh, panels, images, points: points ?? panels.centroid, n: panels.count };
 }
 
 /** One matrix entry A_ij. */

@@ -64,6 +64,12 @@ export type SolverKind = 'dense-lu' | 'dense-gmres' | (string & {});
 /** Above this size a dense matrix is solved iteratively (O(N²) per iteration) rather than by LU (O(N³)). */
 export const LU_MAX_UNKNOWNS = 1500;
 
+/**
+ * Largest system kept as a dense matrix (8·N² bytes: 288 MB at 6,000). Beyond it a matrix-free method
+ * is needed; until one is registered for that size, callers coarsen the mesh to fit.
+ */
+export const DENSE_MAX_UNKNOWNS = 6000;
+
 export interface SolverPreference {
   /** Force a method; 'auto' (default) lets chooseSolver decide. */
   kind?: SolverKind | 'auto';

@@ -1,0 +1,61 @@
+// The field of a solved 3d scene anywhere: panel charges (with images) plus free charges (with images),
+//   φ(r) = Σ_j x_j·(1/4π)·Σ_img sign·I_j(img(r)) + (1/(4π ε0 εr))·Σ_f Σ_img sign·S_f(img(r)),
+//   E = −∇φ,
+// and on the surface, the field on each panel: σ/(ε0 εr) = x on a closed conductor; on a thin sheet,
+// whose x is the sum of both faces, the faces carry x/2 ± E_avg·n with E_avg the average (principal
+// value) normal field at the centroid (methods.md), and the larger face's |x|/2 + |E_avg·n| is reported.
+import type { Charge3d } from '../../../../grammar/scene';
+import { EPSILON_0 } from '../../../../grammar/scene';
+import { chargeGradient, chargePotential } from '../kernels/free-charges';
+import { reflect, type Image } from './images';
+import { surfacePotentialAndGradient, type Bem3dSystem, type EvalMode } from './system';
+
+export interface FieldState3d {
+  sys: Bem3dSystem;
+  /** Scaled densities σ/(ε0 εr) of the final solution. */
+  x: Float64Array;
+  charges: readonly Charge3d[];
+  images: Image[];
+  permittivity: number;
+}
+
+/** [φ, Ex, Ey, Ez] at (x, y, z), in V and V/m. */
+export function potentialAndField(s: FieldState3d, x: number, y: number, z: number, mode: EvalMode = 'precise'): [number, number, number, number] {
+  const out = new Float64Array(4);
+  surfacePotentialAndGradient(s.sys, s.x, x, y, z, out, mode);
+  let phi = out[0], gx = out[1], gy = out[2], gz = out[3];
+  if (s.charges.length > 0) {
+    const k = 1 / (4 * Math.PI * EPSILON_0 * s.permittivity);
+    const r = [0, 0, 0];
+    const g = new Float64Array(3);
+    for (const im of s.images) {
+      reflect(im, x, y, z, r);
+      for (const c of s.charges) {
+        phi += k * im.sign * chargePotential(c, r[0], r[1], r[2]);
+        chargeGradient(c, r[0], r[1], r[2], g);
+        gx += k * im.sign * im.flip[0] * g[0];
+        gy += k * im.sign * im.flip[1] * g[1];
+        gz += k * im.sign * im.flip[2] * g[2];
+      }
+    }
+  }
+  return [phi, -gx, -gy, -gz];
+}
+
+/** Surface field magnitude per panel, V/m (the larger face's on thin sheets). */
+export function surfaceFields(s: FieldState3d): Float64Array {
+  const { mesh } = s.sys;
+  const n = s.sys.n;
+  const E = new Float64Array(n);
+  for (let j = 0; j < n; j++) {
+    if (!mesh.thin[j]) {
+      E[j] = Math.abs(s.x[j]);
+      continue;
+    }
+    const c = mesh.centroid;
+    const [, ex, ey, ez] = potentialAndField(s, c[3 * j], c[3 * j + 1], c[3 * j + 2]);
+    const en = ex * mesh.normal[3 * j] + ey * mesh.normal[3 * j + 1] + ez * mesh.normal[3 * j + 2];
+    E[j] = Math.abs(s.x[j]) / 2 + Math.abs(en);
+  }
+  return E;
+}

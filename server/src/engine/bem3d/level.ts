@@ -1,0 +1,115 @@
+// One mesh level of a 3d scene, solved for unit drives: the mesh, the system, the solver (with its
+// factorization, if any), one solution per electrode at 1 V (the rest at 0) and one for the free
+// charges with every electrode grounded. Medium-independent: densities are scaled by ε0·εr
+// (system.ts), and the free-charge solution is stored for εr = 1 and divided by εr on use.
+// Everything here is cached by a hash of the geometry (levelKey), so drive-only edits reuse it all.
+import type { Charge3d, Scene3d } from '../../../../grammar/scene';
+import { EPSILON_0 } from '../../../../grammar/scene';
+import { chargePotential } from '../kernels/free-charges';
+import { chooseSolver, createSolver, type LinearSolver, type SolverKind } from '../linear/solver';
+import type { Mesh } from '../mesh/types';
+import { reflect, type Image } from './images';
+import { surfaceCollocation } from './collocation';
+import { buildOperator } from './operator';
+import { createSystem, type Bem3dSystem } from './system';
+
+export interface FreeSolution {
+  key: string;
+  /** Scaled densities induced by the free charges (electrodes grounded), for εr = 1. */
+  x: Float64Array;
+  /** Σ x·area per electrode, m (times ε0 gives the induced charge, C, for any εr). */
+  induced: number[];
+}
+
+export interface Level3d {
+  mesh: Mesh;
+  sys: Bem3dSystem;
+  solver: LinearSolver;
+  kind: SolverKind;
+  /** unit[k]: scaled densities with electrode k at 1 V, the others at 0. */
+  unit: Float64Array[];
+  /** raw[i][k] = Σ_{panels of i} unit[k]·area, m: the capacitance matrix is ε0·εr·raw. */
+  raw: number[][];
+  free: FreeSolution | null;
+  timings: Record<string, number>;
+}
+
+/** Σ of x·area over each electrode's panels. */
+export function chargeSums(mesh: Mesh, x: Float64Array, electrodes: number): number[] {
+  const sums = new Array<number>(electrodes).fill(0);
+  for (let j = 0; j < x.length; j++) sums[mesh.electrode[j]] += x[j] * mesh.area[j];
+  return sums;
+}
+
+/** A stable key for the free charges (shape and value; names and ranges do not matter). */
+export function freeKey(charges: readonly Charge3d[]): string {
+  return JSON.stringify(charges.map(({ name: _n, range: _r, ...rest }) => rest));
+}
+
+/** The free charges' potential at the collocation points, with images, for εr = 1 (V). */
+function freeRhs(sys: Bem3dSystem, charges: readonly Charge3d[], images: Image[]): Float64Array {
+  const b = new Float64Array(sys.n);
+  const p = sys.points;
+  const r = [0, 0, 0];
+  const k = 1 / (4 * Math.PI * EPSILON_0);
+  for (let i = 0; i < sys.n; i++) {
+    let s = 0;
+    for (const im of images) {
+      reflect(im, p[3 * i], p[3 * i + 1], p[3 * i + 2], r);
+      for (const c of charges) s += im.sign * chargePotential(c, r[0], r[1], r[2]);
+    }
+    b[i] = -k * s;
+  }
+  return b;
+}
+
+/**
+ * Solves (or reuses from `cached`) the unit solutions on a mesh, then the free-charge solution if
+ * the charges changed. Returns null when cancelled.
+ */
+export function solveLevel(
+  scene: Scene3d,
+  mesh: Mesh,
+  images: Image[],
+  cached: Level3d | null,
+  options: { kind?: SolverKind | 'auto'; isCancelled?: () => boolean },
+): Level3d | null {
+  const K = scene.electrodes.length;
+  let level = cached;
+  if (!level) {
+    const timings: Record<string, number> = {};
+    let t = performance.now();
+    const sys = createSystem(mesh, images);
+    sys.points = surfaceCollocation(scene, mesh, sys.panels.diameter);
+    const kind = chooseSolver(sys.n, { kind: options.kind });
+    const op = buildOperator(sys, kind, options.isCancelled);
+    if (!op) return null;
+    timings.assembly = performance.now() - t;
+    t = performance.now();
+    const solver = createSolver(op, kind);
+    const rhs = Array.from({ length: K }, (_, k) => {
+      const b = new Float64Array(sys.n);
+      for (let i = 0; i < sys.n; i++) if (mesh.electrode[i] === k) b[i] = 1;
+      return b;
+    });
+    const unit = solver.solve(rhs, { isCancelled: options.isCancelled });
+    if (!unit) return null;
+    timings.solve = performance.now() - t;
+    const sums = unit.map((x) => chargeSums(mesh, x, K)); // sums[k][i]
+    const raw = Array.from({ length: K }, (_, i) => Array.from({ length: K }, (_, k) => sums[k][i]));
+    level = { mesh, sys, solver, kind, unit, raw, free: null, timings };
+  }
+  const key = freeKey(scene.charges);
+  if (scene.charges.length === 0) {
+    level.free = null;
+  } else if (!level.free || level.free.key !== key) {
+    const t = performance.now();
+    const b = freeRhs(level.sys, scene.charges, images);
+    const previous = level.free?.x;
+    const x = level.solver.solve([b], { initial: [previous], isCancelled: options.isCancelled });
+    if (!x) return null;
+    level.free = { key, x: x[0], induced: chargeSums(mesh, x[0], K) };
+    level.timings.freeSolve = performance.now() - t;
+  }
+  return level;
+}

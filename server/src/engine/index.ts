@@ -1,0 +1,68 @@
+// The engine's public entry: solveScene(scene, options) → Result (null only when cancelled).
+// Pure apart from the optional cache, which keeps meshes, factorizations and unit solutions keyed by
+// a hash of the geometry (electrode shapes, ground planes, mesh setting, level), so that an edit that
+// changes only drives or free charges needs no new factorization, and one that changes nothing
+// geometric needs no new solve.
+import type { Range, Scene } from '../../../grammar/scene';
+import { diagnostic } from '../../../grammar/diagnostics';
+import type { Result } from './result';
+import { createCache3d, solve3d, type Cache3d } from './solve';
+
+export interface SolveOptions {
+  /** Most panels in the finest mesh (default 20000); over it the mesh is coarsened with a warning. */
+  maxPanels?: number;
+  /** Most cells in one slice grid (default 250000); over it the grid is coarsened with a warning. */
+  maxGridCells?: number;
+  /** 'coarse': about 4× fewer panels and no convergence estimate; 'full' (default): the scene's mesh. */
+  level?: 'coarse' | 'full';
+  /** Solve a second, coarser level for convergence estimates (default true for 'full'). */
+  convergence?: boolean;
+  /** Polled during the solve; when it returns true the solve stops and returns null. */
+  isCancelled?: () => boolean;
+  cache?: EngineCache;
+}
+
+/** Caches kept between solves, one store per space (3d: meshes and solved levels). */
+export interface EngineCache {
+  readonly store: Map<string, unknown>;
+}
+
+export function createEngineCache(): EngineCache {
+  return { store: new Map() };
+}
+
+const ZERO_RANGE: Range = { start: { line: 0, character: 0 }, end: { line: 0, character: 0 } };
+
+/** A Result with no figures, for a space that has no solver yet. */
+function unsolved(scene: Scene): Result {
+  return {
+    format: 'voltscape-result/1',
+    space: scene.space,
+    electrodes: [],
+    capacitance: { names: [], matrix: [], asymmetry: 0 },
+    energy: 0,
+    probes: [],
+    slices: [],
+    diagnostics: [diagnostic('VS407', ZERO_RANGE, `Space ${scene.space} is not solved yet: no figures.`)],
+    stats: { panels: 0, unknowns: 0, solver: 'none', timings: {}, levels: [] },
+  };
+}
+
+export function solveScene(scene: Scene, options: SolveOptions = {}): Result | null {
+  const level = options.level ?? 'full';
+  if (scene.space !== '3d') return unsolved(scene);
+  const cache = options.cache ?? createEngineCache();
+  let c3 = cache.store.get('3d') as Cache3d | undefined;
+  if (!c3) {
+    c3 = createCache3d();
+    cache.store.set('3d', c3);
+  }
+  return solve3d(scene, {
+    maxPanels: options.maxPanels ?? 20000,
+    maxGridCells: options.maxGridCells ?? 250000,
+    level,
+    convergence: level === 'full' && (options.convergence ?? true),
+    isCancelled: options.isCancelled,
+    cache: c3,
+  });
+}

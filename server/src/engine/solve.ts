@@ -1,0 +1,349 @@
+// The 3d solve: mesh levels → unit solutions (cached) → drives → surface fields, capacitance,
+// energy, convergence, probes, slices and the post-solve diagnostics → Result.
+//
+// Energy (textbook electrostatics, e.g. Jackson sec. 1.11, W = ½∫ρφ dV with each free charge's
+// infinite self-energy left out):
+//   W = ½·Σ_k Q_k·V_k + ½·Σ_f Σ_s q_s·φ_f'(p_s),
+// where the inner sum runs over quadrature samples s of free charge f (kernels/free-charges.ts
+// chargeSamples) and φ_f' is the potential at p_s of everything but f itself: the panel charges, every
+// other free charge, and all image charges (f's own images included: that is its interaction with
+// the ground plane).
+import { conductorDistance } from '../../../grammar/geometry';
+import type { Diagnostic, Range, Scene3d } from '../../../grammar/scene';
+import { EPSILON_0 } from '../../../grammar/scene';
+import { diagnostic } from '../../../grammar/diagnostics';
+import { formatPoint, formatQuantity } from '../format/quantity';
+import { potentialAndField, surfaceFields, type FieldState3d } from './bem3d/field';
+import { imageSet, reflect, type Image } from './bem3d/images';
+import { solveLevel, type Level3d } from './bem3d/level';
+import { surfacePotentialAndGradient } from './bem3d/system';
+import { changeBetweenLevels, NO_ESTIMATE, richardson } from './convergence';
+import { applyDrives, unchargedFloating } from './drives';
+import { evaluateProbes, evaluateSlices } from './evaluate';
+import { chargePotential, chargeSamples, chargeTotal } from './kernels/free-charges';
+import { chooseSolver, DENSE_MAX_UNKNOWNS, needsDenseMatrix, type SolverKind } from './linear/solver';
+import { meshForScene } from './mesh/index';
+import type { Mesh } from './mesh/types';
+import type { Convergence, ElectrodeResult, Result } from './result';
+
+export const SAFETY_CAUTION = 'Design aid only; follow applicable standards, local codes and licensed practice.';
+const ZERO_RANGE: Range = { start: { line: 0, character: 0 }, end: { line: 0, character: 0 } };
+
+/** Caches of the 3d path: meshes and solved levels by geometry key (a few recent geometries only). */
+export interface Cache3d {
+  meshes: Map<string, { mesh: Mesh; scale: number; coarsened: boolean }>;
+  levels: Map<string, Level3d>;
+}
+
+export function createCache3d(): Cache3d {
+  return { meshes: new Map(), levels: new Map() };
+}
+
+/** Keeps at most `max` entries, dropping the oldest (Maps iterate in insertion order). */
+function remember<V>(map: Map<string, V>, key: string, value: V, max: number): void {
+  map.delete(key);
+  map.set(key, value);
+  while (map.size > max) map.delete(map.keys().next().value as string);
+}
+
+/** The geometry that a mesh level depends on: shapes, ground planes, mesh setting. */
+export function geometryKey(scene: Scene3d): string {
+  return JSON.stringify({
+    shapes: scene.electrodes.map((e) => e.shape),
+    ground: scene.groundPlanes.map((g) => [g.axis, g.at]),
+    mesh: scene.mesh,
+  });
+}
+
+export interface Solve3dOptions {
+  maxPanels: number;
+  maxGridCells: number;
+  level: 'coarse' | 'full';
+  convergence: boolean;
+  isCancelled?: () => boolean;
+  cache: Cache3d;
+  solver?: SolverKind | 'auto';
+}
+
+/**
+ * The mesh at a level scale, coarsened uniformly until it fits the panel limit (and, for a dense
+ * solver, the dense limit). Cached by geometry, scale and limit.
+ */
+function levelMesh(scene: Scene3d, scale: number, maxPanels: number, cache: Cache3d, kind: SolverKind | 'auto' | undefined) {
+  const key = `${geometryKey(scene)}|${scale}|${maxPanels}|${kind ?? 'auto'}`;
+  const hit = cache.meshes.get(key);
+  if (hit) return hit;
+  let s = scale;
+  let mesh = meshForScene(scene, s);
+  let coarsened = false;
+  for (let tries = 0; tries < 6; tries++) {
+    const n = mesh.area.length;
+    const solver = chooseSolver(n, { kind });
+    const limit = needsDenseMatrix(solver) ? Math.min(maxPanels, DENSE_MAX_UNKNOWNS) : maxPanels;
+    if (n <= limit) break;
+    s *= Math.sqrt(n / limit) * 1.05;
+    mesh = meshForScene(scene, s);
+    coarsened = true;
+  }
+  const entry = { mesh, scale: s, coarsened };
+  remember(cache.meshes, key, entry, 8);
+  return entry;
+}
+
+interface LevelOutcome {
+  level: Level3d;
+  panels: number;
+  potentials: number[];
+  charges: number[];
+  capacitance: number[][];
+  state: FieldState3d;
+  field: Float64Array;
+  /** Peak surface field per electrode: value and panel index (−1 if it has no panels). */
+  peak: { value: number; panel: number }[];
+  singular: boolean;
+}
+
+function solveAt(scene: Scene3d, mesh: Mesh, key: string, images: Image[], o: Solve3dOptions): LevelOutcome | null {
+  const eps = EPSILON_0 * scene.medium.permittivity;
+  const K = scene.electrodes.length;
+  const cached = o.cache.levels.get(key) ?? null;
+  const level = solveLevel(scene, mesh, images, cached, { kind: o.solver, isCancelled: o.isCancelled });
+  if (!level) return null;
+  remember(o.cache.levels, key, level, 4);
+  const capacitance = level.raw.map((row) => row.map((c) => eps * c));
+  // Induced charge from the free charges: ε0·Σx·a, the same in every medium (x was solved for εr = 1).
+  const induced = level.free ? level.free.induced.map((s) => EPSILON_0 * s) : new Array<number>(K).fill(0);
+  const drives = applyDrives(capacitance, induced, scene.electrodes.map((e) => e.drive));
+  const x = new Float64Array(level.sys.n);
+  drives.potentials.forEach((v, k) => {
+    if (v === 0) return;
+    const u = level.unit[k];
+    for (let j = 0; j < x.length; j++) x[j] += v * u[j];
+  });
+  if (level.free) {
+    const f = level.free.x, inv = 1 / scene.medium.permittivity;
+    for (let j = 0; j < x.length; j++) x[j] += inv * f[j];
+  }
+  const state: FieldState3d = { sys: level.sys, x, charges: scene.charges, images, permittivity: scene.medium.permittivity };
+  const field = surfaceFields(state);
+  const peak = Array.from({ length: K }, () => ({ value: 0, panel: -1 }));
+  for (let j = 0; j < field.length; j++) {
+    const p = peak[mesh.electrode[j]];
+    if (p.panel < 0 || field[j] > p.value) {
+      p.value = field[j];
+      p.panel = j;
+    }
+  }
+  return {
+    level,
+    panels: level.sys.n,
+    potentials: drives.potentials,
+    charges: drives.charges,
+    capacitance,
+    state,
+    field,
+    peak,
+    singular: drives.singular,
+  };
+}
+
+/** W = ½ΣQ·V + ½Σ q_s·φ'(p_s) (see the header). */
+function energy(scene: Scene3d, out: LevelOutcome, images: Image[]): number {
+  let w = 0;
+  out.charges.forEach((q, k) => (w += 0.5 * q * out.potentials[k]));
+  if (scene.charges.length === 0) return w;
+  const k = 1 / (4 * Math.PI * EPSILON_0 * scene.medium.permittivity);
+  const buf = new Float64Array(4);
+  const r = [0, 0, 0];
+  scene.charges.forEach((f, fi) => {
+    const { points, charges } = chargeSamples(f);
+    points.forEach((p, s) => {
+      surfacePotentialAndGradient(out.state.sys, out.state.x, p[0], p[1], p[2], buf);
+      let phi = buf[0];
+      images.forEach((im, ii) => {
+        reflect(im, p[0], p[1], p[2], r);
+        scene.charges.forEach((g, gi) => {
+          if (ii === 0 && gi === fi) return; // no self-energy
+          phi += k * im.sign * chargePotential(g, r[0], r[1], r[2]);
+        });
+      });
+      w += 0.5 * charges[s] * phi;
+    });
+  });
+  return w;
+}
+
+/** Smallest gaps between electrodes (and to ground planes) against the local panel size. */
+function gapDiagnostics(scene: Scene3d, mesh: Mesh, diameter: Float64Array, diagnostics: Diagnostic[]): void {
+  const K = scene.electrodes.length;
+  const c = mesh.centroid;
+  // best[a]: the tightest gap seen from electrode a's panels, relative to their size.
+  const worst: { ratio: number; gap: number; h: number; other: string }[] = Array.from({ length: K }, () => ({ ratio: Infinity, gap: 0, h: 0, other: '' }));
+  for (let j = 0; j < mesh.area.length; j++) {
+    const a = mesh.electrode[j];
+    const p = [c[3 * j], c[3 * j + 1], c[3 * j + 2]];
+    const h = diameter[j];
+    for (let b = 0; b < K; b++) {
+      if (b === a) continue;
+      const gap = conductorDistance(scene, b, p);
+      if (gap >= 0 && gap / h < worst[a].ratio) worst[a] = { ratio: gap / h, gap, h, other: scene.electrodes[b].name };
+    }
+    for (const g of scene.groundPlanes) {
+      const gap = Math.abs(p[{ x: 0, y: 1, z: 2 }[g.axis]] - g.at);
+      if (gap / h < worst[a].ratio) worst[a] = { ratio: gap / h, gap, h, other: 'the ground plane' };
+    }
+  }
+  worst.forEach((w, a) => {
+    if (w.ratio < GAP_PANELS) {
+      const e = scene.electrodes[a];
+      diagnostics.push(
+        diagnostic(
+          'VS403',
+          e.nameRange,
+          `Mesh too coarse for the gap of ${formatQuantity(w.gap, 'length')} between ${e.name} and ${w.other}: panels there are ` +
+            `${formatQuantity(w.h, 'length')} across. Set a mesh size of ${formatQuantity(w.gap / GAP_PANELS, 'length')} or less for reliable fields.`,
+        ),
+      );
+    }
+  });
+}
+/** A gap should span at least this many panel sizes (common practice for collocation BEM). */
+export const GAP_PANELS = 1;
+
+/** Solves a 3d scene; null when cancelled. */
+export function solve3d(scene: Scene3d, o: Solve3dOptions): Result | null {
+  const t0 = performance.now();
+  const diagnostics: Diagnostic[] = [];
+  const timings: Record<string, number> = {};
+  const { images, ignored } = imageSet(scene.groundPlanes);
+  for (const g of ignored) {
+    diagnostics.push(diagnostic('VS406', g.range, `Only one ground plane per axis is supported: this plane at ${g.axis} = ${formatQuantity(g.at, 'length')} is ignored.`));
+  }
+  const geometry = geometryKey(scene);
+  // Level scales: 'coarse' is the scale-2 mesh alone; 'full' is scale 1, with scale 2 for the estimate.
+  const scales = o.level === 'coarse' ? [2] : o.convergence ? [2, 1] : [1];
+  const outcomes: LevelOutcome[] = [];
+  let coarsened = false;
+  let t = performance.now();
+  for (const scale of scales) {
+    const m = levelMesh(scene, scale, o.maxPanels, o.cache, o.solver);
+    coarsened ||= m.coarsened;
+    const out = solveAt(scene, m.mesh, `${geometry}|${m.scale}|${o.solver ?? 'auto'}`, images, o);
+    if (!out) return null;
+    outcomes.push(out);
+  }
+  timings.solve = performance.now() - t;
+  const fine = outcomes[outcomes.length - 1];
+  const coarse = outcomes.length > 1 && outcomes[0].panels < fine.panels ? outcomes[0] : null;
+  Object.assign(timings, Object.fromEntries(Object.entries(fine.level.timings).map(([k, v]) => [`fine.${k}`, v])));
+  if (coarsened) {
+    diagnostics.push(
+      diagnostic('VS405', ZERO_RANGE, `Mesh coarsened to ${fine.panels} panels to stay within the panel limit; figures are less accurate than the mesh setting asks.`),
+    );
+  }
+  if (fine.singular) {
+    diagnostics.push(diagnostic('VS409', ZERO_RANGE, 'The drive equations are singular: floating or fixed-charge electrodes could not be resolved; their potentials are reported as 0 V.'));
+  }
+
+  const K = scene.electrodes.length;
+  const mesh = fine.level.mesh;
+  const electrodes: ElectrodeResult[] = scene.electrodes.map((e, k) => {
+    const p = fine.peak[k];
+    const onEdge = p.panel >= 0 && mesh.onEdge[p.panel] === 1;
+    const at = p.panel >= 0 ? [mesh.centroid[3 * p.panel], mesh.centroid[3 * p.panel + 1], mesh.centroid[3 * p.panel + 2]] : [NaN, NaN, NaN];
+    let capConv: Convergence = NO_ESTIMATE;
+    let fieldConv: Convergence = NO_ESTIMATE;
+    if (coarse) {
+      capConv = richardson(coarse.panels, coarse.capacitance[k][k], fine.panels, fine.capacitance[k][k]);
+      fieldConv = onEdge
+        ? changeBetweenLevels(coarse.peak[k].value, p.value)
+        : richardson(coarse.panels, coarse.peak[k].value, fine.panels, p.value);
+    }
+    return {
+      name: e.name,
+      range: e.range,
+      potential: fine.potentials[k],
+      charge: fine.charges[k],
+      maxField: p.value,
+      maxFieldAt: at,
+      maxFieldConvergence: fieldConv,
+      maxFieldOnEdge: onEdge,
+      capacitance: fine.capacitance[k][k],
+      capacitanceConvergence: capConv,
+    };
+  });
+
+  let asymmetry = 0;
+  let diag = 0;
+  for (let i = 0; i < K; i++) {
+    diag = Math.max(diag, Math.abs(fine.capacitance[i][i]));
+    for (let j = 0; j < K; j++) asymmetry = Math.max(asymmetry, Math.abs(fine.capacitance[i][j] - fine.capacitance[j][i]));
+  }
+
+  t = performance.now();
+  const W = energy(scene, fine, images);
+  const probes = evaluateProbes(scene, fine.state);
+  timings.probes = performance.now() - t;
+  t = performance.now();
+  const slices = evaluateSlices(scene, fine.state, fine.potentials, o.maxGridCells, diagnostics, o.isCancelled);
+  if (!slices) return null;
+  timings.slices = performance.now() - t;
+
+  // ---- post-solve diagnostics ----
+  const freeAbs = scene.charges.reduce((s, c) => s + Math.abs(chargeTotal(c)), 0);
+  for (const k of unchargedFloating(scene.electrodes.map((e) => e.drive), freeAbs)) {
+    const e = scene.electrodes[k];
+    diagnostics.push(
+      diagnostic('VS404', e.nameRange, `Floating electrode ${e.name} has nothing to charge it: no electrode is driven and there is no free charge, so it sits at 0 V.`),
+    );
+  }
+  electrodes.forEach((r, k) => {
+    const e = scene.electrodes[k];
+    const edge = r.maxFieldOnEdge
+      ? ' The peak sits on a sharp edge, where the computed field grows as the mesh is refined; model the edge radius for a meaningful figure.'
+      : '';
+    const where = ` at ${formatPoint(r.maxFieldAt)}`;
+    if (scene.limit && r.maxField > scene.limit.field) {
+      diagnostics.push(
+        diagnostic(
+          'VS401',
+          e.nameRange,
+          `Peak field ${formatQuantity(r.maxField, 'field')} on ${e.name}${where} exceeds the limit ${formatQuantity(scene.limit.field, 'field')}.${edge} ${SAFETY_CAUTION}`,
+          { maxField: r.maxField, limit: scene.limit.field },
+        ),
+      );
+    } else if (scene.medium.strength !== null && r.maxField > scene.medium.strength) {
+      diagnostics.push(
+        diagnostic(
+          'VS402',
+          e.nameRange,
+          `Peak field ${formatQuantity(r.maxField, 'field')} on ${e.name}${where} is above the rough strength of the medium (${formatQuantity(scene.medium.strength, 'field')}): expect breakdown or corona.${edge} ${SAFETY_CAUTION}`,
+          { maxField: r.maxField, strength: scene.medium.strength },
+        ),
+      );
+    }
+  });
+  gapDiagnostics(scene, mesh, fine.state.sys.panels.diameter, diagnostics);
+
+  timings.total = performance.now() - t0;
+  return {
+    format: 'voltscape-result/1',
+    space: '3d',
+    electrodes,
+    capacitance: { names: scene.electrodes.map((e) => e.name), matrix: fine.capacitance, asymmetry: diag > 0 ? asymmetry / diag : 0 },
+    energy: W,
+    probes,
+    slices,
+    diagnostics,
+    stats: {
+      panels: fine.panels,
+      unknowns: fine.panels,
+      solver: fine.level.kind,
+      timings,
+      levels: outcomes.map((x) => x.panels),
+    },
+  };
+}
+
+// For tests and the benchmark: the field anywhere of a solved state.
+export { potentialAndField };
