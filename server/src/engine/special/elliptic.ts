@@ -29,10 +29,19 @@ const LN4 = Math.log(4);
  * are NaN; at m = 1, K = +∞ and E = 1.
  */
 export function completeElliptic(m: number, m1: number = 1 - m): EllipticPair {
-  if (!(m >= 0 && m1 >= 0 && m <= 1 && m1 <= 1)) return { k: NaN, e: NaN, kMinusE: NaN };
-  if (m1 === 0) return { k: Infinity, e: 1, kMinusE: Infinity };
-  if (m1 < SERIES_BELOW) return nearOne(m1);
-  return byAgm(m, m1);
+  return completeEllipticInto({ k: 0, e: 0, kMinusE: 0 }, m, m1);
+}
+
+/** As completeElliptic, writing into `out` (no allocation, for inner loops); returns out. */
+export function completeEllipticInto(out: EllipticPair, m: number, m1: number = 1 - m): EllipticPair {
+  if (!(m >= 0 && m1 >= 0 && m <= 1 && m1 <= 1)) {
+    out.k = out.e = out.kMinusE = NaN;
+  } else if (m1 === 0) {
+    out.k = out.kMinusE = Infinity;
+    out.e = 1;
+  } else if (m1 < SERIES_BELOW) nearOne(m1, out);
+  else byAgm(m, m1, out);
+  return out;
 }
 
 /** K(m) alone; m is the parameter (m = k²). */
@@ -47,7 +56,7 @@ export function ellipE(m: number): number {
 
 // AGM (DLMF 19.8.1–19.8.2): a0 = 1, b0 = √m1, c0 = √m; a_{n+1} = (a_n + b_n)/2,
 // b_{n+1} = √(a_n b_n), c_{n+1} = c_n²/(4 a_{n+1}); K = π/(2 a_∞); E = K (1 − Σ_{n≥0} 2^{n−1} c_n²).
-function byAgm(m: number, m1: number): EllipticPair {
+function byAgm(m: number, m1: number, out: EllipticPair): void {
   let a = 1;
   let b = Math.sqrt(m1);
   let c2 = m; // c_n²
@@ -65,14 +74,16 @@ function byAgm(m: number, m1: number): EllipticPair {
     if (term <= 1e-17 * sum && Math.abs(a - b) <= 1e-15 * a) break;
   }
   const k = Math.PI / (2 * a);
-  return { k, e: k * (1 - sum), kMinusE: k * sum };
+  out.k = k;
+  out.e = k * (1 - sum);
+  out.kMinusE = k * sum;
 }
 
 // Series about m = 1 (DLMF 19.12.1, 19.12.2), with k'² = m1 and L = ln(1/k') = −½·ln(m1):
 //   K = Σ_{n≥0} [(½)_n / n!]² m1^n (L + d_n),
 //   E = 1 + ½ Σ_{n≥0} [(½)_n (3/2)_n / ((2)_n n!)] m1^{n+1} (L + d_n − 1/((2n+1)(2n+2))),
 // with d_0 = ln 4 and d_{n+1} = d_n − 2/((2n+1)(2n+2)) (d_n = ψ(1+n) − ψ(½+n)).
-function nearOne(m1: number): EllipticPair {
+function nearOne(m1: number, out: EllipticPair): void {
   const L = -0.5 * Math.log(m1);
   let a = 1; // [(½)_n / n!]²
   let b = 1; // (½)_n (3/2)_n / ((2)_n n!)
@@ -94,5 +105,7 @@ function nearOne(m1: number): EllipticPair {
     d -= 2 * step;
   }
   const e = 1 + 0.5 * eSum;
-  return { k, e, kMinusE: k - e };
+  out.k = k;
+  out.e = e;
+  out.kMinusE = k - e;
 }

@@ -1,0 +1,103 @@
+// `space axisymmetric`: every electrode is a surface of revolution about the z axis, described by its
+// (r, z) profile. Rings of surface charge on the profile's elements (kernel: axisymmetric/ring.ts),
+// free charges as rings or points on the axis, a ground plane z = c by image rings of opposite sign
+// (an extension of language.md, which lists ground planes for 3d and planar: a plane normal to the
+// axis keeps the symmetry). The shared pipeline is planar/solve2d.ts.
+import type { SceneAxisymmetric } from '../../../../grammar/scene';
+import { EPSILON_0 } from '../../../../grammar/scene';
+import { characteristicLength } from '../../../../grammar/geometry';
+import type { Result } from '../result';
+import type { Mirror } from '../planar/bem2d';
+import type { Element2d, Piece } from '../planar/elements';
+import { solve2d, type FreeSource, type Solve2dOptions } from '../planar/solve2d';
+import { addAxisPoint, addRing } from './ring';
+import { profilePieces } from './profile';
+
+/** Element size per preset, relative to the scene's characteristic length (half its largest side). */
+export const AXISYMMETRIC_PRESETS = { coarse: 1 / 15, normal: 1 / 40, fine: 1 / 100 } as const;
+/** Upper bound on elements at the fine level (dense LU on 2000 unknowns takes a few seconds). */
+export const MAX_ELEMENTS_2D = 2000;
+
+/** Charge per unit surface density on an element: ∫ 2πr ds (exact for segments and arcs). */
+export function ringArea(el: Element2d): number {
+  if (el.kind === 'line') return 2 * Math.PI * el.mx * el.length;
+  const theta1 = el.theta0 + (el.dir * el.length) / el.radius;
+  return 2 * Math.PI * (el.cx * el.length + el.dir * el.radius * el.radius * (Math.sin(theta1) - Math.sin(el.theta0)));
+}
+
+/** Element size for a 2d scene: `mesh size` as given, or a preset of the characteristic length, capped by an element budget. */
+export function elementSize(scene: { mesh: SceneAxisymmetric['mesh'] }, scale: number, pieces: Piece[], meshScale = 1): number {
+  let h = (scene.mesh.kind === 'size' ? scene.mesh.size : scale * AXISYMMETRIC_PRESETS[scene.mesh.preset]) * meshScale;
+  if (!(h > 0) || !Number.isFinite(h)) h = scale * AXISYMMETRIC_PRESETS.normal;
+  const total = pieces.reduce((s, p) => s + p.length, 0);
+  // Graded pieces carry up to π/2 more elements.
+  const estimate = (1.6 * total) / h;
+  if (estimate > MAX_ELEMENTS_2D) h *= estimate / MAX_ELEMENTS_2D;
+  return h;
+}
+
+export function solveAxisymmetric(scene: SceneAxisymmetric, options: Solve2dOptions = {}): Result | null {
+  const scale = characteristicLength(scene);
+  const eps = EPSILON_0 * scene.medium.permittivity;
+  const pieces = scene.electrodes.flatMap((e, i) => profilePieces(e.shape, i, scale * 1e-9));
+  // Only a plane normal to the axis keeps the symmetry; the first one is used.
+  const plane = scene.groundPlanes.find((g) => g.axis === 'z');
+  const mirror: Mirror | null = plane ? { axis: 1, at: plane.at } : null;
+  const free: FreeSource[] = [];
+  for (const c of scene.charges) {
+    if (c.kind === 'point') {
+      // An off-axis point charge breaks the symmetry (a geometry diagnostic); it is left out here.
+      if (Math.abs(c.at[0]) > scale * 1e-9) continue;
+      const z = c.at[1];
+      const w = c.value / eps;
+      free.push({
+        at: [0, z],
+        value: c.value,
+        total: c.value,
+        add(r, zz, field, acc, self) {
+          if (!self) addAxisPoint(z, r, zz, w, field, acc);
+          if (mirror) addMirrored(acc, field, (a) => addAxisPoint(z, r, 2 * mirror.at - zz, w, field, a));
+        },
+      });
+    } else {
+      const [a, z] = c.at;
+      const w = c.density / eps;
+      free.push({
+        at: [a, z],
+        value: c.density * 2 * Math.PI * a,
+        total: c.density * 2 * Math.PI * a,
+        add(r, zz, field, acc, self) {
+          if (!self) addRing(a, z, r, zz, w, field, acc);
+          if (mirror) addMirrored(acc, field, (b) => addRing(a, z, r, 2 * mirror.at - zz, w, field, b));
+        },
+      });
+    }
+  }
+  return solve2d(
+    scene,
+    {
+      space: 'axisymmetric',
+      kernel: addRing,
+      mirror,
+      infinityUnknown: false,
+      pieces,
+      h: elementSize(scene, scale, pieces, options.meshScale),
+      area: ringArea,
+      free,
+      scale,
+      toSolver: (u, v) => [Math.abs(u), v, u < 0 ? -1 : 1],
+    },
+    options,
+  );
+}
+
+/** Image of opposite sign in the plane z = c: φ_img(p) = −φ(Mp), E_img = −M·E(Mp). */
+function addMirrored(acc: Float64Array, field: boolean, add: (a: Float64Array) => void): void {
+  const img = new Float64Array(3);
+  add(img);
+  acc[0] -= img[0];
+  if (field) {
+    acc[1] -= img[1];
+    acc[2] += img[2];
+  }
+}

@@ -1,0 +1,519 @@
+// The solve pipeline shared by the planar and axisymmetric engines: elements at two mesh levels →
+// collocation matrix → one solve per electrode at 1 V and one for the free charges → drives
+// (server/src/engine/drives.ts) → surface fields, capacitance matrix, energy, probes and slices →
+// Result. Convergence figures come from the two levels (server/src/engine/convergence.ts; the error
+// of curved constant-density elements falls as h², i.e. N^−2).
+//
+// Planar without a ground plane: the potential at infinity c is an extra unknown and the total
+// charge an extra equation (methods.md). This removes the logarithmic divergence of a net charge and
+// the degenerate-scale singularity of the ln kernel. With the total charge of the conductors and the
+// free line charges at zero, the potential far away tends to c, so "ground" (0 V) keeps its meaning
+// of a conductor held at 0 V; the Maxwell matrix then has zero row sums (per metre, a lone wire has
+// no capacitance to infinity).
+import type { Drive, SceneAxisymmetric, ScenePlanar, Vec2 } from '../../../../grammar/scene';
+import { EPSILON_0 } from '../../../../grammar/scene';
+import { insideElectrode } from '../../../../grammar/geometry';
+import { applyDrives } from '../drives';
+import { changeBetweenLevels, richardson, NO_ESTIMATE } from '../convergence';
+import { createSolver, chooseSolver, denseOperator } from '../linear/solver';
+import type { Convergence, ElectrodeResult, Outline, ProbeResult, Result, SliceResult } from '../result';
+import { gaussLegendre } from '../special/gauss-legendre';
+import { addElement, assemble, meanSurfaceField, type KernelAdd, type Mirror } from './bem2d';
+import { curvePoint, splitPiece, type Element2d, type Piece } from './elements';
+
+/** Options shared with the 3d solve: cancellation and how many mesh levels. */
+type Scene2d = SceneAxisymmetric | ScenePlanar;
+
+export interface Solve2dOptions {
+  /** Polled between stages and rows; a cancelled solve returns null. */
+  isCancelled?: () => boolean;
+  /** 2 (default): a coarse level for the convergence estimate, then the reported fine level; 1: fine only. */
+  levels?: number;
+  /** Multiplies the element size (tests and coarse previews). */
+  meshScale?: number;
+}
+
+/** A free charge as the engine sees it: adds its potential and field (per ε, images included). */
+export interface FreeSource {
+  at: Vec2;
+  /** Charge in C (axisymmetric point), C/m along a ring, or C/m (planar line). */
+  value: number;
+  /** Adds value/ε-weighted (φ, E_u, E_v) at (u, v) into acc; `self` leaves out the direct term. */
+  add(u: number, v: number, field: boolean, acc: Float64Array, self: boolean): void;
+  /** The charge it carries in the total-charge balance: C (axisymmetric) or C/m (planar). */
+  total: number;
+}
+
+/** What a space contributes to the shared pipeline. */
+export interface Space2d {
+  space: 'axisymmetric' | 'planar';
+  kernel: KernelAdd;
+  mirror: Mirror | null;
+  /** Planar with no ground plane: potential at infinity as an unknown, total charge as an equation. */
+  infinityUnknown: boolean;
+  pieces: Piece[];
+  /** Element size of the reported (fine) level. */
+  h: number;
+  /** Charge per unit surface density: ∫2πr ds (axisymmetric) or the length (planar, per metre). */
+  area(el: Element2d): number;
+  free: FreeSource[];
+  /** Scene length scale (scales the total-charge row). */
+  scale: number;
+  /** The points where fields are evaluated, mapped into the solver's half-plane, and back. */
+  toSolver(u: number, v: number): [number, number, number]; // x, y, sign applied to E_u
+}
+
+interface Level {
+  elements: Element2d[];
+  /** Reduced densities τ = σ/ε per unit drive: one per electrode, then the free-charge solution. */
+  units: Float64Array[];
+  /** Potential at infinity of each unit solution (planar without ground), else 0. */
+  infinity: number[];
+  C: number[][];
+  induced: number[];
+  solver: string;
+}
+
+/** Elements of size about h; arcs get at least one element per 20°. */
+function elementsFor(setup: Space2d, h: number): Element2d[] {
+  return setup.pieces.flatMap((p) => splitPiece(p, h, p.kind === 'arc' ? Math.max(2, Math.ceil(p.length / (p.radius * 0.35))) : 1));
+}
+
+function solveLevel(setup: Space2d, scene: Scene2d, elements: Element2d[], eps: number, options: Solve2dOptions, timings: Record<string, number>, tag: string): Level | null {
+  let t = performance.now();
+  const n = elements.length;
+  const a = assemble(elements, setup.kernel, setup.mirror, options.isCancelled);
+  if (!a) return null;
+  timings[`assemble${tag}`] = performance.now() - t;
+  t = performance.now();
+  const size = setup.infinityUnknown ? n + 1 : n;
+  let matrix = a;
+  if (setup.infinityUnknown) {
+    matrix = new Float64Array(size * size);
+    for (let i = 0; i < n; i++) {
+      matrix.set(a.subarray(i * n, i * n + n), i * size);
+      matrix[i * size + n] = 1; // + c, the potential at infinity
+      matrix[n * size + i] = setup.area(elements[i]) / setup.scale; // Σ q_j / (ε·scale)
+    }
+  }
+  const k = scene.electrodes.length;
+  const rhs: Float64Array[] = [];
+  for (let e = 0; e < k; e++) {
+    const b = new Float64Array(size);
+    for (let i = 0; i < n; i++) if (elements[i].electrode === e) b[i] = 1;
+    rhs.push(b);
+  }
+  // Free charges with every electrode at 0 V: the conductors carry −(total free charge) when
+  // infinity is an unknown (all the flux ends on them).
+  const bFree = new Float64Array(size);
+  const acc = new Float64Array(3);
+  for (let i = 0; i < n; i++) {
+    acc[0] = 0;
+    for (const f of setup.free) f.add(elements[i].mx, elements[i].my, false, acc, false);
+    bFree[i] = -acc[0];
+  }
+  if (setup.infinityUnknown) bFree[n] = -setup.free.reduce((s, f) => s + f.total, 0) / (eps * setup.scale);
+  rhs.push(bFree);
+  const kind = chooseSolver(size);
+  const solver = createSolver(denseOperator(size, matrix), kind);
+  const solved = solver.solve(rhs, { isCancelled: options.isCancelled, tolerance: 1e-12 });
+  if (!solved) return null;
+  timings[`solve${tag}`] = performance.now() - t;
+  const units = solved.map((x) => x.subarray(0, n) as Float64Array);
+  const infinity = solved.map((x) => (setup.infinityUnknown ? x[n] : 0));
+  const areas = elements.map((el) => setup.area(el));
+  const chargeOn = (tau: Float64Array): number[] => {
+    const q = new Array<number>(k).fill(0);
+    for (let i = 0; i < n; i++) q[elements[i].electrode] += eps * tau[i] * areas[i];
+    return q;
+  };
+  const columns = units.slice(0, k).map(chargeOn);
+  const C = Array.from({ length: k }, (_, i) => Array.from({ length: k }, (_, j) => columns[j][i]));
+  const induced = chargeOn(units[k]);
+  return { elements, units, infinity, C, induced, solver: solver.name };
+}
+
+interface Driven {
+  potentials: number[];
+  charges: number[];
+  tau: Float64Array;
+  infinity: number;
+  singular: boolean;
+}
+
+/**
+ * Potentials and charges for the scene's drives. Planar without a ground plane and without any
+ * electrode held at a potential: the potentials are fixed only up to a constant, which is chosen so
+ * that the potential at infinity is 0 (least squares over the charge equations and that condition).
+ */
+function drive(level: Level, drives: Drive[], infinityUnknown: boolean): Driven {
+  const k = drives.length;
+  let potentials: number[];
+  let charges: number[];
+  let singular = false;
+  if (infinityUnknown && k > 0 && !drives.some((d) => d.kind === 'potential')) {
+    // Rows: Σ_j C_ij V_j = Q_i − q_f,i for every electrode, and Σ_j c_j V_j = −c_f (infinity at 0 V).
+    const rows: number[][] = level.C.map((row) => [...row]);
+    const b = drives.map((d, i) => (d.kind === 'charge' ? d.value : 0) - level.induced[i]);
+    const cScale = Math.max(...level.C.map((r, i) => Math.abs(r[i])), 1e-300);
+    rows.push(level.infinity.slice(0, k).map((c) => c * cScale));
+    b.push(-level.infinity[k] * cScale);
+    // Normal equations of the (k+1)×k least-squares problem (small).
+    const ata = new Float64Array(k * k);
+    const atb = new Float64Array(k);
+    for (let r = 0; r <= k; r++) {
+      for (let i = 0; i < k; i++) {
+        atb[i] += rows[r][i] * b[r];
+        for (let j = 0; j < k; j++) ata[i * k + j] += rows[r][i] * rows[r][j];
+      }
+    }
+    potentials = solveSmall(k, ata, atb) ?? new Array<number>(k).fill(0);
+    charges = drives.map((_, i) => level.induced[i] + level.C[i].reduce((s, c, j) => s + c * potentials[j], 0));
+  } else {
+    const sol = applyDrives(level.C, level.induced, drives);
+    potentials = sol.potentials;
+    charges = sol.charges;
+    singular = sol.singular;
+  }
+  const n = level.elements.length;
+  const tau = new Float64Array(n);
+  let infinity = level.infinity[k];
+  for (let i = 0; i < n; i++) tau[i] = level.units[k][i];
+  for (let e = 0; e < k; e++) {
+    const v = potentials[e];
+    if (v === 0) continue;
+    const u = level.units[e];
+    for (let i = 0; i < n; i++) tau[i] += v * u[i];
+    infinity += v * level.infinity[e];
+  }
+  return { potentials, charges, tau, infinity, singular };
+}
+
+/** Gaussian elimination with partial pivoting for a small dense system; null when singular. */
+function solveSmall(n: number, a: Float64Array, b: Float64Array): number[] | null {
+  const m = Float64Array.from(a);
+  const x = Float64Array.from(b);
+  for (let c = 0; c < n; c++) {
+    let p = c;
+    for (let r = c + 1; r < n; r++) if (Math.abs(m[r * n + c]) > Math.abs(m[p * n + c])) p = r;
+    if (m[p * n + c] === 0) return null;
+    if (p !== c) {
+      for (let j = 0; j < n; j++) [m[c * n + j], m[p * n + j]] = [m[p * n + j], m[c * n + j]];
+      [x[c], x[p]] = [x[p], x[c]];
+    }
+    for (let r = c + 1; r < n; r++) {
+      const f = m[r * n + c] / m[c * n + c];
+      for (let j = c; j < n; j++) m[r * n + j] -= f * m[c * n + j];
+      x[r] -= f * x[c];
+    }
+  }
+  for (let c = n - 1; c >= 0; c--) {
+    let s = x[c];
+    for (let j = c + 1; j < n; j++) s -= m[c * n + j] * x[j];
+    x[c] = s / m[c * n + c];
+  }
+  return Array.from(x);
+}
+
+interface SurfacePeak {
+  value: number;
+  at: Vec2;
+  edge: boolean;
+}
+
+/**
+ * Surface field on every element: σ/ε along the outward normal on a solid conductor (the field
+ * inside is zero); on a thin sheet or hollow shell the mean of the two faces' fields ± τ/2·n, the
+ * larger face reported. Returns the peak per electrode.
+ */
+function surfacePeaks(setup: Space2d, level: Level, d: Driven, k: number): SurfacePeak[] {
+  const peaks: SurfacePeak[] = Array.from({ length: k }, () => ({ value: 0, at: [NaN, NaN] as Vec2, edge: false }));
+  const { elements } = level;
+  for (let i = 0; i < elements.length; i++) {
+    const el = elements[i];
+    let magnitude: number;
+    if (!el.thin) magnitude = Math.abs(d.tau[i]);
+    else {
+      const [ex, ey] = meanFieldWithFree(setup, elements, d.tau, i);
+      const half = 0.5 * d.tau[i];
+      magnitude = Math.max(Math.hypot(ex + half * el.nx, ey + half * el.ny), Math.hypot(ex - half * el.nx, ey - half * el.ny));
+    }
+    const p = peaks[el.electrode];
+    if (magnitude > p.value) {
+      p.value = magnitude;
+      p.at = [el.mx, el.my];
+      p.edge = el.edge;
+    }
+  }
+  return peaks;
+}
+
+function meanFieldWithFree(setup: Space2d, elements: Element2d[], tau: Float64Array, i: number): [number, number] {
+  const [ex, ey] = meanSurfaceField(elements, tau, i, setup.kernel, setup.mirror);
+  const acc = new Float64Array(3);
+  for (const f of setup.free) f.add(elements[i].mx, elements[i].my, true, acc, false);
+  return [ex + acc[1], ey + acc[2]];
+}
+
+// ---- evaluation at points ----
+
+const FAR_RULE = 3;
+
+/** Potential and field at (u, v) in the scene's coordinates. */
+function evaluate(setup: Space2d, elements: Element2d[], far: Float64Array, d: Driven, u: number, v: number, acc: Float64Array): void {
+  const [x, y, sign] = setup.toSolver(u, v);
+  acc[0] = setup.infinityUnknown ? d.infinity : 0;
+  acc[1] = 0;
+  acc[2] = 0;
+  const mirror = setup.mirror;
+  const mxp = mirror && mirror.axis === 0 ? 2 * mirror.at - x : x;
+  const myp = mirror && mirror.axis === 1 ? 2 * mirror.at - y : y;
+  const img = new Float64Array(3);
+  for (let j = 0; j < elements.length; j++) {
+    const t = d.tau[j];
+    if (t === 0) continue;
+    const el = elements[j];
+    const dist = Math.hypot(x - el.mx, y - el.my);
+    const distImage = mirror ? Math.hypot(mxp - el.mx, myp - el.my) : Infinity;
+    if (dist > 12 * el.length && distImage > 12 * el.length) {
+      // Far: the element's cached 3-point rule, direct and mirrored.
+      for (let q = 0; q < FAR_RULE; q++) {
+        const o = (j * FAR_RULE + q) * 3;
+        setup.kernel(far[o], far[o + 1], x, y, t * far[o + 2], true, acc);
+        if (mirror) {
+          img[0] = img[1] = img[2] = 0;
+          setup.kernel(far[o], far[o + 1], mxp, myp, t * far[o + 2], true, img);
+          acc[0] -= img[0];
+          acc[1] += mirror.axis === 0 ? img[1] : -img[1];
+          acc[2] += mirror.axis === 1 ? img[2] : -img[2];
+        }
+      }
+    } else addElement(el, x, y, setup.kernel, mirror, t, true, acc);
+  }
+  for (const f of setup.free) f.add(x, y, true, acc, false);
+  acc[1] *= sign;
+}
+
+function farNodes(elements: Element2d[]): Float64Array {
+  const rule = gaussLegendre(FAR_RULE);
+  const out = new Float64Array(elements.length * FAR_RULE * 3);
+  const p = new Float64Array(4);
+  elements.forEach((el, j) => {
+    for (let q = 0; q < FAR_RULE; q++) {
+      curvePoint(el, el.length * rule.nodes[q], p);
+      const o = (j * FAR_RULE + q) * 3;
+      out[o] = p[0];
+      out[o + 1] = p[1];
+      out[o + 2] = el.length * rule.weights[q];
+    }
+  });
+  return out;
+}
+
+// ---- outlines of electrodes in a slice ----
+
+function pieceOutline(p: Piece): number[] {
+  const steps = p.kind === 'arc' ? Math.max(2, Math.ceil(p.length / p.radius / (Math.PI / 72))) : 1;
+  const path: number[] = [];
+  const q = new Float64Array(4);
+  for (let i = 0; i <= steps; i++) {
+    curvePoint(p, (p.length * i) / steps, q);
+    path.push(q[0], q[1]);
+  }
+  return path;
+}
+
+function samePoint(path: number[], i: number, j: number, tol: number): boolean {
+  return Math.abs(path[i] - path[j]) <= tol && Math.abs(path[i + 1] - path[j + 1]) <= tol;
+}
+
+/** Joins consecutive paths whose ends meet into one polyline. */
+function joinPaths(paths: number[][], tol: number): number[][] {
+  const out: number[][] = [];
+  for (const p of paths) {
+    const last = out[out.length - 1];
+    if (last && Math.abs(last[last.length - 2] - p[0]) <= tol && Math.abs(last[last.length - 1] - p[1]) <= tol) last.push(...p.slice(2));
+    else out.push([...p]);
+  }
+  return out;
+}
+
+// ---- the pipeline ----
+
+export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions = {}): Result | null {
+  const t0 = performance.now();
+  const timings: Record<string, number> = {};
+  const eps = EPSILON_0 * scene.medium.permittivity;
+  const k = scene.electrodes.length;
+  const drives = scene.electrodes.map((e) => e.drive);
+  const levelCount = Math.max(1, Math.min(2, options.levels ?? 2));
+  // The coarse level doubles the element size; when that barely changes the count (a polyline
+  // finer than the mesh), it is skipped and no convergence estimate is given.
+  const meshes = [elementsFor(setup, setup.h)];
+  if (levelCount > 1) {
+    const coarseMesh = elementsFor(setup, 2 * setup.h);
+    if (coarseMesh.length < 0.8 * meshes[0].length) meshes.unshift(coarseMesh);
+  }
+  const levels: Level[] = [];
+  for (let l = 0; l < meshes.length; l++) {
+    const level = solveLevel(setup, scene, meshes[l], eps, options, timings, l === meshes.length - 1 ? '' : 'Coarse');
+    if (!level) return null;
+    levels.push(level);
+  }
+  const fine = levels[levels.length - 1];
+  const coarse = levels.length > 1 ? levels[0] : null;
+  const dFine = drive(fine, drives, setup.infinityUnknown);
+  const dCoarse = coarse ? drive(coarse, drives, setup.infinityUnknown) : null;
+  if (options.isCancelled?.()) return null;
+
+  let t = performance.now();
+  const peaks = surfacePeaks(setup, fine, dFine, k);
+  const peaksCoarse = coarse && dCoarse ? surfacePeaks(setup, coarse, dCoarse, k) : null;
+  timings.surfaceField = performance.now() - t;
+  const nFine = fine.elements.length;
+  const nCoarse = coarse?.elements.length ?? 0;
+  const conv = (f1: number, f2: number): Convergence => (coarse ? richardson(nCoarse, f1, nFine, f2, 2) : NO_ESTIMATE);
+
+  const electrodes: ElectrodeResult[] = scene.electrodes.map((e, i) => {
+    const peak = peaks[i];
+    const peakCoarse = peaksCoarse?.[i];
+    const maxFieldConvergence = !peakCoarse ? NO_ESTIMATE : peak.edge ? changeBetweenLevels(peakCoarse.value, peak.value) : conv(peakCoarse.value, peak.value);
+    return {
+      name: e.name,
+      range: e.range,
+      potential: dFine.potentials[i],
+      charge: dFine.charges[i],
+      maxField: peak.value,
+      maxFieldAt: [...peak.at],
+      maxFieldConvergence,
+      maxFieldOnEdge: peak.edge,
+      capacitance: fine.C[i][i],
+      capacitanceConvergence: coarse ? conv(coarse.C[i][i], fine.C[i][i]) : NO_ESTIMATE,
+    };
+  });
+
+  // Energy W = ½ΣQ_k·V_k + ½Σ_f q_f·φ_f, φ_f the potential at free charge f without its own direct term.
+  const far = farNodes(fine.elements);
+  const acc = new Float64Array(3);
+  let energy = 0;
+  for (let i = 0; i < k; i++) energy += 0.5 * dFine.charges[i] * dFine.potentials[i];
+  for (const f of setup.free) {
+    const [x, y] = setup.toSolver(f.at[0], f.at[1]);
+    acc[0] = setup.infinityUnknown ? dFine.infinity : 0;
+    for (let j = 0; j < fine.elements.length; j++) {
+      if (dFine.tau[j] !== 0) addElement(fine.elements[j], x, y, setup.kernel, setup.mirror, dFine.tau[j], false, acc);
+    }
+    for (const g of setup.free) g.add(x, y, false, acc, g === f);
+    energy += 0.5 * f.value * acc[0];
+  }
+
+  t = performance.now();
+  const probes: ProbeResult[] = scene.probes.map((p) => {
+    const points: Vec2[] =
+      p.kind === 'point'
+        ? [p.at]
+        : Array.from({ length: Math.max(2, p.samples) }, (_, s, all = Math.max(2, p.samples)) => {
+            const f = s / (all - 1);
+            return [p.from[0] + f * (p.to[0] - p.from[0]), p.from[1] + f * (p.to[1] - p.from[1])] as Vec2;
+          });
+    return {
+      name: p.name,
+      points: points.map((at) => {
+        const inside = insideElectrode(scene, at);
+        if (inside >= 0) return { at: [...at], potential: dFine.potentials[inside], field: [0, 0], fieldMagnitude: 0 };
+        evaluate(setup, fine.elements, far, dFine, at[0], at[1], acc);
+        return { at: [...at], potential: acc[0], field: [acc[1], acc[2]], fieldMagnitude: Math.hypot(acc[1], acc[2]) };
+      }),
+    };
+  });
+  timings.probes = performance.now() - t;
+
+  t = performance.now();
+  const slices: SliceResult[] = [];
+  for (const s of scene.slices) {
+    const slice = sliceGrid(scene, setup, fine, far, dFine, s);
+    if (!slice) return null;
+    slices.push(slice);
+    if (options.isCancelled?.()) return null;
+  }
+  timings.slices = performance.now() - t;
+
+  const names = scene.electrodes.map((e) => e.name);
+  let asym = 0;
+  let diag = 0;
+  for (let i = 0; i < k; i++) {
+    diag = Math.max(diag, Math.abs(fine.C[i][i]));
+    for (let j = 0; j < k; j++) asym = Math.max(asym, Math.abs(fine.C[i][j] - fine.C[j][i]));
+  }
+  timings.total = performance.now() - t0;
+  return {
+    format: 'voltscape-result/1',
+    space: setup.space,
+    electrodes,
+    capacitance: { names, matrix: fine.C.map((r) => [...r]), asymmetry: diag > 0 ? asym / diag : 0 },
+    energy,
+    probes,
+    slices,
+    diagnostics: [],
+    stats: {
+      panels: nFine,
+      unknowns: setup.infinityUnknown ? nFine + 1 : nFine,
+      solver: fine.solver,
+      timings,
+      levels: levels.map((l) => l.elements.length),
+    },
+  };
+
+  function sliceGrid(scene: Scene2d, setup: Space2d, level: Level, farN: Float64Array, d: Driven, s: Scene2d['slices'][number]): SliceResult | null {
+    const u0 = Math.min(s.from[0], s.to[0]);
+    const v0 = Math.min(s.from[1], s.to[1]);
+    const w = Math.abs(s.to[0] - s.from[0]);
+    const hgt = Math.abs(s.to[1] - s.from[1]);
+    const cells = Math.max(1, Math.round(s.cells));
+    const step = Math.max(w, hgt) / cells;
+    const nu = Math.max(1, Math.round(w / step));
+    const nv = Math.max(1, Math.round(hgt / step));
+    const du = w / nu;
+    const dv = hgt / nv;
+    const size = nu * nv;
+    const potential = new Float64Array(size);
+    const fieldU = new Float32Array(size);
+    const fieldV = new Float32Array(size);
+    const fieldMagnitude = new Float32Array(size);
+    const inside = new Int16Array(size);
+    const a = new Float64Array(3);
+    for (let j = 0; j < nv; j++) {
+      if ((j & 7) === 0 && options.isCancelled?.()) return null;
+      for (let i = 0; i < nu; i++) {
+        const u = u0 + (i + 0.5) * du;
+        const v = v0 + (j + 0.5) * dv;
+        const idx = j * nu + i;
+        const e = insideElectrode(scene, [u, v]);
+        inside[idx] = e;
+        if (e >= 0) {
+          potential[idx] = d.potentials[e];
+          fieldU[idx] = fieldV[idx] = fieldMagnitude[idx] = NaN;
+          continue;
+        }
+        evaluate(setup, level.elements, farN, d, u, v, a);
+        potential[idx] = a[0];
+        fieldU[idx] = a[1];
+        fieldV[idx] = a[2];
+        fieldMagnitude[idx] = Math.hypot(a[1], a[2]);
+      }
+    }
+    const outlines: Outline[] = [];
+    for (let e = 0; e < k; e++) {
+      const paths = joinPaths(setup.pieces.filter((p) => p.electrode === e).map(pieceOutline), setup.scale * 1e-9);
+      const closed = paths.length === 1 && samePoint(paths[0], 0, paths[0].length - 2, setup.scale * 1e-9);
+      if (setup.space === 'axisymmetric' && u0 < 0) paths.push(...paths.map((path) => path.map((x, m) => (m % 2 === 0 ? -x : x))));
+      outlines.push({ electrode: e, paths, closed });
+    }
+    const groundLines: number[][] = [];
+    if (setup.mirror) {
+      const c = setup.mirror.at;
+      groundLines.push(setup.mirror.axis === 1 ? [u0, c, u0 + w, c] : [c, v0, c, v0 + hgt]);
+    }
+    return { plane: s.plane, at: s.at, nu, nv, u0, v0, du, dv, potential, fieldU, fieldV, fieldMagnitude, inside, outlines, groundLines };
+  }
+}
