@@ -36,6 +36,32 @@ export interface ServerOptions {
   solver?: Solver;
 }
 
+/**
+ * Wraps a feature as a request handler: finds the document, honours cancellation (answers
+ * RequestCancelled), turns a FeatureError into a failed request with its message, and turns any
+ * other crash into a log line and an empty answer.
+ */
+export function makeGuard(find: (uri: string) => DocumentState | undefined, log: (message: string) => void) {
+  return function guard<P extends { textDocument: { uri: string } }, R>(
+    name: string,
+    empty: R,
+    feature: (state: DocumentState, params: P) => R,
+  ): (params: P, token?: CancellationToken) => R | ResponseError<void> {
+    return (params, token) => {
+      if (token?.isCancellationRequested) return new ResponseError(LSPErrorCodes.RequestCancelled, 'cancelled');
+      const state = find(params.textDocument.uri);
+      if (!state) return empty;
+      try {
+        return feature(state, params);
+      } catch (error) {
+        if (error instanceof FeatureError) return new ResponseError(LSPErrorCodes.RequestFailed, error.message);
+        log(`${name} failed: ${error instanceof Error ? (error.stack ?? error.message) : String(error)}`);
+        return empty;
+      }
+    };
+  };
+}
+
 /** Starts the Voltscape language server on a connection and returns it. */
 export function startLanguageServer(options: ServerOptions = {}): Connection {
   const connection = options.connection ?? createConnection(ProposedFeatures.all);
@@ -52,25 +78,7 @@ export function startLanguageServer(options: ServerOptions = {}): Connection {
   const documents = new TextDocuments(TextDocument);
   let pullConfiguration = false;
 
-  /** Wraps a feature: finds the document, honours cancellation, turns a crash into a log line and an empty answer. */
-  function guard<P extends { textDocument: { uri: string } }, R>(
-    name: string,
-    empty: R,
-    feature: (state: DocumentState, params: P) => R,
-  ): (params: P, token: CancellationToken) => R | ResponseError<void> {
-    return (params, token) => {
-      if (token?.isCancellationRequested) return new ResponseError(LSPErrorCodes.RequestCancelled, 'cancelled');
-      const state = core.get(params.textDocument.uri);
-      if (!state) return empty;
-      try {
-        return feature(state, params);
-      } catch (error) {
-        if (error instanceof FeatureError) return new ResponseError(LSPErrorCodes.RequestFailed, error.message);
-        log(`${name} failed: ${error instanceof Error ? (error.stack ?? error.message) : String(error)}`);
-        return empty;
-      }
-    };
-  }
+  const guard = makeGuard((uri) => core.get(uri), log);
 
   connection.onInitialize((params): InitializeResult => {
     pullConfiguration = !!params.capabilities.workspace?.configuration;
