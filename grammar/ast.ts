@@ -160,37 +160,29 @@ function stringNode(t: IToken): StringNode {
   return { kind: 'string', value, range, badEscapes };
 }
 
-/** Range covering the first and last real tokens below a CST node, or null when there are none. */
-function cstRange(ctx: Children | undefined): Range | null {
-  if (!ctx) return null;
-  let first: IToken | undefined;
-  let last: IToken | undefined;
-  const visit = (c: Children) => {
-    for (const key in c) {
-      for (const child of c[key] ?? []) {
-        if ('children' in child) visit(child.children as Children);
-        else if (isReal(child)) {
-          if (!first || child.startOffset < first.startOffset) first = child;
-          if (!last || child.startOffset > last.startOffset) last = child;
-        }
-      }
-    }
-  };
-  visit(ctx);
-  return first && last ? spanRange(tokenRange(first), tokenRange(last)) : null;
+/** The range from `first` to the furthest end among the given ranges. */
+function extend(first: Range, rest: (Range | null | undefined)[]): Range {
+  let end = first.end;
+  for (const r of rest) if (r && comparePositions(r.end, end) > 0) end = r.end;
+  return { start: first.start, end };
 }
 
 function expression(ctx: Children | undefined): Expr | null {
   if (!ctx) return null;
-  const terms = nodes(ctx, 'multiplicative').map(multiplicative);
-  const ops = (ctx.AdditiveOp ?? []) as IToken[];
-  return fold(terms, ops);
-}
-
-function multiplicative(ctx: Children): Expr | null {
-  const terms = nodes(ctx, 'unary').map(unary);
-  const ops = (ctx.MultOp ?? []) as IToken[];
-  return fold(terms, ops);
+  const atoms = ((ctx.atom ?? []) as CstNode[]).map((a) => atom(a.children as Children));
+  const ops = (ctx.BinaryOp ?? []) as IToken[];
+  // Precedence: * and / bind tighter than + and -; both associate to the left.
+  const terms: (Expr | null)[] = [atoms[0] ?? null];
+  const addOps: IToken[] = [];
+  for (let i = 0; i < ops.length; i++) {
+    const right = atoms[i + 1] ?? null;
+    if (ops[i].image === '*' || ops[i].image === '/') terms[terms.length - 1] = fold([terms[terms.length - 1], right], [ops[i]]);
+    else {
+      addOps.push(ops[i]);
+      terms.push(right);
+    }
+  }
+  return fold(terms, addOps);
 }
 
 /** Left-associative chain `t0 op0 t1 op1 t2 ...`. */
@@ -210,15 +202,15 @@ function fold(terms: (Expr | null)[], ops: IToken[]): Expr | null {
   return acc;
 }
 
-function unary(ctx: Children): Expr | null {
-  const op = tok(ctx, 'AdditiveOp');
-  if (op) {
-    const operand = unary(node(ctx, 'unary') ?? {});
-    const opRange = tokenRange(op);
-    return { kind: 'unary', op: op.image as '+' | '-', operand, range: spanRange(opRange, operand?.range ?? opRange) };
+function atom(ctx: Children): Expr | null {
+  const sign = tok(ctx, 'AdditiveOp');
+  if (sign) {
+    const inner = node(ctx, 'atom');
+    const operand = inner ? atom(inner) : null;
+    const opRange = tokenRange(sign);
+    return { kind: 'unary', op: sign.image as '+' | '-', operand, range: spanRange(opRange, operand?.range ?? opRange) };
   }
-  const post = node(ctx, 'postfix');
-  return post ? postfix(post) : null;
+  return withUnit(primary(ctx), tok(ctx, 'Unit'));
 }
 
 function withUnit(operand: Expr | null, unitToken: IToken | undefined): Expr | null {
@@ -227,12 +219,7 @@ function withUnit(operand: Expr | null, unitToken: IToken | undefined): Expr | n
   return { kind: 'unit', operand, unit, range: spanRange(operand?.range ?? unit.range, unit.range) };
 }
 
-function postfix(ctx: Children): Expr | null {
-  return withUnit(primary(node(ctx, 'primary')), tok(ctx, 'Unit'));
-}
-
-function primary(ctx: Children | undefined): Expr | null {
-  if (!ctx) return null;
+function primary(ctx: Children): Expr | null {
   const num = tok(ctx, 'NumberLiteral');
   if (num) return { kind: 'number', value: Number(num.image), text: num.image, range: tokenRange(num) };
   const id = tok(ctx, 'Identifier');
@@ -241,18 +228,20 @@ function primary(ctx: Children | undefined): Expr | null {
   const g = node(ctx, 'group');
   if (fnTok) {
     const fn = word(fnTok, 'function')!;
-    const args = g ? nodes(g, 'expression').map(expression).filter((e): e is Expr => !!e) : [];
-    const range = spanRange(fn.range, cstRange(g) ?? fn.range);
-    return { kind: 'call', fn, args, range };
+    const inner = g ? group(g) : null;
+    const args = inner?.kind === 'group' ? inner.items : [];
+    return { kind: 'call', fn, args, range: extend(fn.range, [inner?.range]) };
   }
   return g ? group(g) : null;
 }
 
 function group(ctx: Children): Expr | null {
   const items = nodes(ctx, 'expression').map(expression).filter((e): e is Expr => !!e);
-  const range = cstRange(ctx);
-  if (!range) return null;
-  return { kind: 'group', items, range };
+  const open = tok(ctx, 'LParen');
+  const close = tok(ctx, 'RParen');
+  const first = open ? tokenRange(open) : items[0]?.range;
+  if (!first) return null;
+  return { kind: 'group', items, range: extend(first, [...items.map((i) => i.range), close ? tokenRange(close) : null]) };
 }
 
 function value(ctx: Children | undefined): Value | null {
@@ -327,7 +316,7 @@ function statement(cst: CstNode): Statement | null {
     const letValue = type === 'let' ? expression(node(inner, 'expression')) : null;
     const attrsCtx = node(inner, 'attributes');
     const attributes = attrsCtx ? nodes(attrsCtx, 'attribute').map(attribute).filter((a): a is Attribute => !!a) : [];
-    const range = cstRange(inner) ?? keyword.range;
+    const range = extend(keyword.range, [name?.range, head?.range, title?.range, ...points.map((p) => p.range), letValue?.range, ...attributes.map((a) => a.range), ...toks(inner, 'Identifier').map(tokenRange), ...toks(inner, 'Equals').map(tokenRange), ...toks(inner, 'PlaneKw').map(tokenRange)]);
     return { kind: 'statement', type, keyword, name, head, title, points, value: letValue, attributes, range };
   }
   return null;

@@ -9,8 +9,8 @@
 // - exact where cheap: a solid sphere (or circle) against anything, gap = d_B(centre) − radius,
 //   since our signed distances are exact Euclidean distances; two spheres; two solid boxes;
 // - otherwise a sampled search: each surface is a set of parametric patches, cut into cells;
-//   a cell whose centre value minus its reach (the largest distance from its centre to its corners
-//   and edge midpoints, times 1.25) stays above the tolerance cannot touch and is dropped (the
+//   a cell whose centre value minus its reach (the largest distance from its centre to its corners,
+//   times 1.5) stays above the tolerance cannot touch and is dropped (the
 //   distance is 1-Lipschitz), the rest are split best-first within a budget, and the best few
 //   points are then polished by a local pattern search. This finds tangent contact to rounding
 //   error; a gap smaller than the search can resolve within its budget is reported as touching.
@@ -21,6 +21,7 @@ import {
   basisAround,
   characteristicLength,
   conductorDistance,
+  conductorDistanceFunction,
   electrodeBounds,
   electrodeIsThin,
   insideElectrode,
@@ -130,56 +131,69 @@ interface Cell {
   reach: number;
 }
 
-const dist = (a: number[], b: number[]) => Math.sqrt(a.reduce((acc, x, k) => acc + (x - b[k]) ** 2, 0));
+function dist(a: number[], b: number[]): number {
+  let acc = 0;
+  for (let k = 0; k < a.length; k++) acc += (a[k] - b[k]) ** 2;
+  return Math.sqrt(acc);
+}
+const ENDS = [[-1, 0], [1, 0]];
+const CORNERS = [[-1, -1], [1, -1], [-1, 1], [1, 1]];
+/**
+ * A cell's reach is its largest corner distance times this factor: the margin covers the bulge of a
+ * curved patch between its corners (at most a few percent at the starting cell sizes used here).
+ */
+const REACH_FACTOR = 1.5;
 
 /**
  * The least value of f over the patches, searched as described at the top of this file. Returns
  * early once a value below `stopBelow` is found (contact is certain), and never spends more than
  * `budget` evaluations of f on the split phase.
  */
-function minimumOver(patches: Patch[], f: (p: number[]) => number, tolerance: number, stopBelow: number, budget = 3000): number {
+function minimumOver(patches: Patch[], f: (p: number[]) => number, tolerance: number, stopBelow: number, budget = 2500): number {
   let best = Infinity;
-  const polish: Cell[] = [];
-  const evaluate = (patch: Patch, s: number, t: number, hs: number, ht: number): Cell => {
+  const evaluate = (patch: Patch, s: number, t: number, hs: number, ht: number): Cell & { patch: Patch } => {
     const c = patch.at(s, t);
     const value = f(c);
     let reach = 0;
-    const probes = patch.dims === 1 ? [[-1, 0], [1, 0]] : [[-1, -1], [1, -1], [-1, 1], [1, 1], [0, -1], [0, 1], [-1, 0], [1, 0]];
-    for (const [a, b] of probes) reach = Math.max(reach, dist(c, patch.at(s + a * hs, t + b * ht)));
+    for (const [a, b] of patch.dims === 1 ? ENDS : CORNERS) reach = Math.max(reach, dist(c, patch.at(s + a * hs, t + b * ht)));
     best = Math.min(best, value);
-    return { s, t, hs, ht, value, reach: 1.25 * reach };
+    return { s, t, hs, ht, value, reach: REACH_FACTOR * reach, patch };
   };
+  let cells: (Cell & { patch: Patch })[] = [];
   for (const patch of patches) {
-    const n = patch.dims === 1 ? 32 : 12;
-    let cells: Cell[] = [];
+    const n = patch.dims === 1 ? 24 : 8;
     for (let i = 0; i < n; i++) {
       for (let j = 0; j < (patch.dims === 1 ? 1 : n); j++) {
         cells.push(evaluate(patch, (i + 0.5) / n, patch.dims === 1 ? 0 : (j + 0.5) / n, 0.5 / n, patch.dims === 1 ? 0 : 0.5 / n));
       }
     }
-    let spent = 0;
-    while (cells.length > 0 && best >= stopBelow && spent < budget) {
-      const next: Cell[] = [];
-      cells.sort((a, b) => a.value - a.reach - (b.value - b.reach));
-      for (const cell of cells) {
-        if (cell.value - cell.reach > tolerance) continue; // cannot come within the tolerance
-        if (cell.reach < tolerance * 1e-3 || spent >= budget) {
-          polish.push(cell);
-          continue;
-        }
-        const hs = cell.hs / 2, ht = cell.ht / 2;
-        const kids = patch.dims === 1 ? [[-1, 0], [1, 0]] : [[-1, -1], [1, -1], [-1, 1], [1, 1]];
-        for (const [a, b] of kids) next.push(evaluate(patch, cell.s + a * hs, cell.t + b * ht, hs, ht));
-        spent += kids.length;
-        if (best < stopBelow) break;
-      }
-      cells = next;
-    }
-    // Polish the most promising points with a local pattern search in parameter space.
-    const seeds = [...cells, ...polish].sort((a, b) => a.value - b.value).slice(0, 3);
-    for (const seed of seeds) best = Math.min(best, patternSearch(patch, f, seed));
-    polish.length = 0;
   }
+  let spent = cells.length;
+  // Polish the best starting point first: tangent contact is usually found right there.
+  const start = cells.reduce((a, b) => (b.value < a.value ? b : a), cells[0]);
+  if (start && start.value - start.reach <= tolerance) best = Math.min(best, patternSearch(start.patch, f, start));
+  if (best < stopBelow) return best;
+  const settled: (Cell & { patch: Patch })[] = [];
+  while (cells.length > 0 && best >= stopBelow && spent < budget) {
+    const next: (Cell & { patch: Patch })[] = [];
+    cells.sort((a, b) => a.value - a.reach - (b.value - b.reach));
+    for (const cell of cells) {
+      if (cell.value - cell.reach > tolerance) continue; // cannot come within the tolerance
+      if (cell.reach < tolerance || spent >= budget || best < stopBelow) {
+        settled.push(cell);
+        continue;
+      }
+      const hs = cell.hs / 2, ht = cell.ht / 2;
+      const kids = cell.patch.dims === 1 ? [[-1, 0], [1, 0]] : [[-1, -1], [1, -1], [-1, 1], [1, 1]];
+      for (const [a, b] of kids) next.push(evaluate(cell.patch, cell.s + a * hs, cell.t + b * ht, hs, ht));
+      spent += kids.length;
+    }
+    cells = next;
+  }
+  if (best < stopBelow) return best;
+  // Polish the two most promising points with a local pattern search in parameter space.
+  const seeds = [...cells, ...settled].filter((c) => c.value - c.reach <= tolerance).sort((a, b) => a.value - b.value).slice(0, 2);
+  for (const seed of seeds) best = Math.min(best, patternSearch(seed.patch, f, seed));
   return best;
 }
 
@@ -188,7 +202,7 @@ function patternSearch(patch: Patch, f: (p: number[]) => number, seed: Cell): nu
   let step = Math.max(seed.hs, seed.ht);
   const clamp = (x: number) => Math.min(1, Math.max(0, x));
   const moves = patch.dims === 1 ? [[1, 0], [-1, 0]] : [[1, 0], [-1, 0], [0, 1], [0, -1], [1, 1], [-1, -1], [1, -1], [-1, 1]];
-  for (let iter = 0; iter < 400 && step > 1e-13; iter++) {
+  for (let iter = 0; iter < 300 && step > 1e-13; iter++) {
     let improved = false;
     for (const [a, b] of moves) {
       const ns = clamp(s + a * step), nt = clamp(t + b * step);
@@ -211,7 +225,7 @@ function patternSearch(patch: Patch, f: (p: number[]) => number, seed: Cell): nu
 function electrodePatches(scene: Scene, i: number): Patch[] {
   switch (scene.space) {
     case '3d':
-      return surfacePatches3d(scene.electrodes[i].shape).map((at) => ({ dims: 2 as const, at: (s: number, t: number) => at(s, t) }));
+      return surfacePatches3d(scene.electrodes[i].shape).map((at) => ({ dims: 2 as const, at }));
     case 'axisymmetric':
       return profileCurvesAxisymmetric(scene.electrodes[i].shape).map((at) => ({ dims: 1 as const, at: (s: number) => at(s) }));
     case 'planar':
@@ -260,10 +274,11 @@ function electrodeGap(scene: Scene, i: number, j: number, tolerance: number): nu
     const max = Math.max(...gaps);
     return max < 0 ? max : Math.hypot(...gaps.map((g) => Math.max(g, 0)));
   }
-  const stop = -tolerance;
-  const ij = minimumOver(electrodePatches(scene, i), (p) => conductorDistance(scene, j, p), tolerance, stop);
+  // Stop at the first sign of contact: whether it is touching or overlap only changes the wording.
+  const stop = tolerance;
+  const ij = minimumOver(electrodePatches(scene, i), conductorDistanceFunction(scene, j), tolerance, stop);
   if (ij < stop) return ij;
-  const ji = minimumOver(electrodePatches(scene, j), (p) => conductorDistance(scene, i, p), tolerance, stop);
+  const ji = minimumOver(electrodePatches(scene, j), conductorDistanceFunction(scene, i), tolerance, stop);
   return Math.min(ij, ji);
 }
 
@@ -358,7 +373,7 @@ function checkCharges(cx: Context, chargeOk: boolean[]): void {
       const patches = chargePatches(scene, k);
       const d = c.kind === 'point'
         ? conductorDistance(scene, i, [...c.at])
-        : minimumOver(patches, (p) => conductorDistance(scene, i, p), tolerance, -tolerance);
+        : minimumOver(patches, conductorDistanceFunction(scene, i), tolerance, tolerance);
       if (d > tolerance) continue;
       const where = d < -tolerance ? 'inside' : 'on';
       const part = c.kind === 'point' ? '' : d < -tolerance ? ' runs' : ' touches';
@@ -444,7 +459,7 @@ function checkSlices(cx: Context, chargeOk: boolean[]): void {
           return slice.plane === 'xy' ? [u, v, slice.at] : slice.plane === 'xz' ? [u, slice.at, v] : [slice.at, u, v];
         },
       };
-      return minimumOver([patch], (p) => conductorDistance(scene, i, p), margin, margin, 600) <= margin;
+      return minimumOver([patch], conductorDistanceFunction(scene, i), margin, margin, 600) <= margin;
     });
     if (hit) continue;
     const chargeHit = scene.charges.some((_, m) => {

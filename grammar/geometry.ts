@@ -126,6 +126,42 @@ export function signedDistance3d(shape: Shape3d, p: Vec3): number {
   }
 }
 
+/**
+ * signedDistance3d for one shape, with the axis frame worked out once: the fast form for searches
+ * that ask many points of the same shape.
+ */
+export function distanceFunction3d(shape: Shape3d): (p: number[]) => number {
+  switch (shape.kind) {
+    case 'cylinder': {
+      const axis = sub3(shape.to, shape.from);
+      const length = norm3(axis);
+      const [wx, wy, wz] = unit3(axis);
+      const [fx, fy, fz] = shape.from;
+      const half = [shape.radius, length / 2];
+      return (p) => {
+        const qx = p[0] - fx, qy = p[1] - fy, qz = p[2] - fz;
+        const along = qx * wx + qy * wy + qz * wz;
+        const rho = Math.hypot(qx - along * wx, qy - along * wy, qz - along * wz);
+        return boxDistance([rho, along - length / 2], half);
+      };
+    }
+    case 'torus':
+    case 'disc': {
+      const [wx, wy, wz] = unit3(shape.kind === 'torus' ? shape.axis : shape.normal);
+      const [cx, cy, cz] = shape.center;
+      return (p) => {
+        const qx = p[0] - cx, qy = p[1] - cy, qz = p[2] - cz;
+        const h = qx * wx + qy * wy + qz * wz;
+        const rho = Math.hypot(qx - h * wx, qy - h * wy, qz - h * wz);
+        if (shape.kind === 'torus') return Math.hypot(rho - shape.major, h) - shape.minor;
+        return rho <= shape.radius ? Math.abs(h) : Math.hypot(rho - shape.radius, h);
+      };
+    }
+    default:
+      return (p) => signedDistance3d(shape, p as Vec3);
+  }
+}
+
 /** Whether a 3d shape is a thin sheet (disc, plate, or any hollow shell): it has no conducting interior. */
 export function isThin3d(shape: Shape3d): boolean {
   return shape.kind === 'disc' || shape.kind === 'plate' || shape.hollow;
@@ -175,6 +211,12 @@ export function bounds3d(shape: Shape3d): Bounds {
   }
 }
 
+/** The point at radius rho and angle ph on the circle about base spanned by e1, e2. */
+function circlePoint(base: Vec3, e1: Vec3, e2: Vec3, rho: number, ph: number): Vec3 {
+  const c = rho * Math.cos(ph), s = rho * Math.sin(ph);
+  return [base[0] + c * e1[0] + s * e2[0], base[1] + c * e1[1] + s * e2[1], base[2] + c * e1[2] + s * e2[2]];
+}
+
 /**
  * The surface of a 3d shape as patches over the unit square (s, t) ∈ [0, 1]²; the checks sample
  * and refine them. Closed shapes give their whole surface; thin sheets their one sheet.
@@ -212,23 +254,20 @@ export function surfacePatches3d(shape: Shape3d): ((s: number, t: number) => Vec
       const w = unit3(sub3(shape.to, shape.from));
       const [e1, e2] = basisAround(w);
       const r = shape.radius;
-      const at = (base: Vec3, rho: number, ph: number): Vec3 => [0, 1, 2].map(
-        (k) => base[k] + rho * (Math.cos(ph) * e1[k] + Math.sin(ph) * e2[k]),
-      ) as Vec3;
-      const lerp = (t: number): Vec3 => [0, 1, 2].map((k) => shape.from[k] + t * (shape.to[k] - shape.from[k])) as Vec3;
+      const lerp = (t: number): Vec3 => [
+        shape.from[0] + t * (shape.to[0] - shape.from[0]),
+        shape.from[1] + t * (shape.to[1] - shape.from[1]),
+        shape.from[2] + t * (shape.to[2] - shape.from[2]),
+      ];
       return [
-        (s, t) => at(lerp(t), r, TAU * s),
-        (s, t) => at(shape.from, r * t, TAU * s),
-        (s, t) => at(shape.to, r * t, TAU * s),
+        (s, t) => circlePoint(lerp(t), e1, e2, r, TAU * s),
+        (s, t) => circlePoint(shape.from, e1, e2, r * t, TAU * s),
+        (s, t) => circlePoint(shape.to, e1, e2, r * t, TAU * s),
       ];
     }
     case 'disc': {
       const [e1, e2] = basisAround(unit3(shape.normal));
-      return [
-        (s, t) => [0, 1, 2].map(
-          (k) => shape.center[k] + shape.radius * t * (Math.cos(TAU * s) * e1[k] + Math.sin(TAU * s) * e2[k]),
-        ) as Vec3,
-      ];
+      return [(s, t) => circlePoint(shape.center, e1, e2, shape.radius * t, TAU * s)];
     }
     case 'plate': {
       const [a, b] = plateAxes(shape.normal);
@@ -248,10 +287,9 @@ export function surfacePatches3d(shape: Shape3d): ((s: number, t: number) => Vec
       return [
         (s, t) => {
           const th = TAU * s, ph = TAU * t;
-          const rho = R + r * Math.cos(ph);
-          return [0, 1, 2].map(
-            (k) => c[k] + rho * (Math.cos(th) * e1[k] + Math.sin(th) * e2[k]) + r * Math.sin(ph) * w[k],
-          ) as Vec3;
+          const p = circlePoint(c, e1, e2, R + r * Math.cos(ph), th);
+          const h = r * Math.sin(ph);
+          return [p[0] + h * w[0], p[1] + h * w[1], p[2] + h * w[2]];
         },
       ];
     }
@@ -431,6 +469,16 @@ export function electrodeIsThin(scene: Scene, i: number): boolean {
 export function conductorDistance(scene: Scene, i: number, p: number[]): number {
   const d = electrodeDistance(scene, i, p);
   return electrodeIsThin(scene, i) ? Math.abs(d) : d;
+}
+
+/** conductorDistance for electrode i as a function, prepared once (fast for many points). */
+export function conductorDistanceFunction(scene: Scene, i: number): (p: number[]) => number {
+  const thin = electrodeIsThin(scene, i);
+  if (scene.space === '3d') {
+    const f = distanceFunction3d(scene.electrodes[i].shape);
+    return thin ? (p) => Math.abs(f(p)) : f;
+  }
+  return (p) => conductorDistance(scene, i, p);
 }
 
 export function electrodeBounds(scene: Scene, i: number): Bounds {

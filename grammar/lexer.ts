@@ -19,6 +19,7 @@ export const PlaneWord = createToken({ name: 'PlaneWord', pattern: Lexer.NA, lab
 export const FuncName = createToken({ name: 'FuncName', pattern: Lexer.NA, label: 'a function' });
 export const AdditiveOp = createToken({ name: 'AdditiveOp', pattern: Lexer.NA, label: "'+' or '-'" });
 export const MultOp = createToken({ name: 'MultOp', pattern: Lexer.NA, label: "'*' or '/'" });
+export const BinaryOp = createToken({ name: 'BinaryOp', pattern: Lexer.NA, label: 'an operator' });
 
 // ---- trivia ----
 export const WhiteSpace = createToken({ name: 'WhiteSpace', pattern: /[ \t\f\r\n\u00a0\ufeff]+/, group: Lexer.SKIPPED, line_breaks: true });
@@ -124,10 +125,10 @@ export const LParen = createToken({ name: 'LParen', pattern: /\(/, label: "'('" 
 export const RParen = createToken({ name: 'RParen', pattern: /\)/, label: "')'" });
 export const Comma = createToken({ name: 'Comma', pattern: /,/, label: "','" });
 export const Equals = createToken({ name: 'Equals', pattern: /=/, label: "'='" });
-export const Plus = createToken({ name: 'Plus', pattern: /\+/, categories: [AdditiveOp], label: "'+'" });
-export const Minus = createToken({ name: 'Minus', pattern: /-/, categories: [AdditiveOp], label: "'-'" });
-export const Star = createToken({ name: 'Star', pattern: /\*/, categories: [MultOp], label: "'*'" });
-export const Slash = createToken({ name: 'Slash', pattern: /\//, categories: [MultOp], label: "'/'" });
+export const Plus = createToken({ name: 'Plus', pattern: /\+/, categories: [AdditiveOp, BinaryOp], label: "'+'" });
+export const Minus = createToken({ name: 'Minus', pattern: /-/, categories: [AdditiveOp, BinaryOp], label: "'-'" });
+export const Star = createToken({ name: 'Star', pattern: /\*/, categories: [MultOp, BinaryOp], label: "'*'" });
+export const Slash = createToken({ name: 'Slash', pattern: /\//, categories: [MultOp, BinaryOp], label: "'/'" });
 
 export const allTokens: TokenType[] = [
   WhiteSpace,
@@ -160,9 +161,10 @@ export const allTokens: TokenType[] = [
   FuncName,
   AdditiveOp,
   MultOp,
+  BinaryOp,
 ];
 
-export const vscapeLexer = new Lexer(allTokens, { positionTracking: 'full', ensureOptimizations: false });
+export const vscapeLexer = new Lexer(allTokens, { positionTracking: 'full', ensureOptimizations: true });
 
 export interface SourceToken {
   /** Token type name: 'NumberLiteral', 'Unit', 'Identifier', 'ElectrodeKw', 'Comment', 'StringLiteral'... */

@@ -195,50 +195,40 @@ class VscapeParser extends CstParser {
     ]);
   });
 
+  /** Operands joined by binary operators; precedence is applied when the AST is built (grammar/ast.ts). */
   public expression = this.RULE('expression', () => {
-    this.SUBRULE(this.multiplicative);
+    this.SUBRULE(this.atom);
     this.MANY(() => {
-      this.CONSUME(T.AdditiveOp);
-      this.SUBRULE2(this.multiplicative);
+      this.CONSUME(T.BinaryOp);
+      this.SUBRULE2(this.atom);
     });
   });
 
-  private multiplicative = this.RULE('multiplicative', () => {
-    this.SUBRULE(this.unary);
-    this.MANY(() => {
-      this.CONSUME(T.MultOp);
-      this.SUBRULE2(this.unary);
-    });
-  });
-
-  private unary = this.RULE('unary', () => {
+  /** A signed operand, or a number, name, call or group with an optional unit. */
+  private atom = this.RULE('atom', () => {
     this.OR([
       {
         ALT: () => {
           this.CONSUME(T.AdditiveOp);
-          this.SUBRULE(this.unary);
+          this.SUBRULE(this.atom);
         },
       },
-      { ALT: () => this.SUBRULE(this.postfix) },
-    ]);
-  });
-
-  private postfix = this.RULE('postfix', () => {
-    this.SUBRULE(this.primary);
-    this.OPTION(() => this.CONSUME(T.Unit));
-  });
-
-  private primary = this.RULE('primary', () => {
-    this.OR([
-      { ALT: () => this.CONSUME(T.NumberLiteral) },
-      { ALT: () => this.CONSUME(T.Identifier) },
       {
         ALT: () => {
-          this.CONSUME(T.FuncName);
-          this.SUBRULE(this.group);
+          this.OR2([
+            { ALT: () => this.CONSUME(T.NumberLiteral) },
+            { ALT: () => this.CONSUME(T.Identifier) },
+            {
+              ALT: () => {
+                this.CONSUME(T.FuncName);
+                this.SUBRULE(this.group);
+              },
+            },
+            { ALT: () => this.SUBRULE2(this.group) },
+          ]);
+          this.OPTION(() => this.CONSUME(T.Unit));
         },
       },
-      { ALT: () => this.SUBRULE2(this.group) },
     ]);
   });
 
