@@ -639,7 +639,7 @@ function analyzeSlice(st: State, b: Builder, stmt: Statement) {
     const eq = at.value as { axis: string; at: number; axisRange: Range } | null;
     if (!eq) return;
     if (eq.axis !== normal) {
-      push(st, 'VS221', eq.axisRange, `A ${plane} slice is placed along ${normal}: write 'at ${normal} = Q'.`, { replacement: normal });
+      push(st, 'VS221', eq.axisRange, `The ${plane} slice is placed along ${normal}: write 'at ${normal} = Q'.`, { replacement: normal });
       return;
     }
     position = eq.at;
@@ -835,7 +835,7 @@ function checkMagnitudes(st: State) {
     const key = JSON.stringify(l.range);
     if (seen.has(key)) continue;
     seen.add(key);
-    push(st, 'VS205', l.range, `This length (${l.value.toPrecision(3)} m) is over ${MAGNITUDE_RATIO.toExponential(0)} times the scene's typical length (${median.toPrecision(3)} m); check its unit.`, {
+    push(st, 'VS205', l.range, `This length (${l.value.toPrecision(3)} m) is over 10^4 times the scene's typical length (${median.toPrecision(3)} m); check its unit.`, {
       value: l.value,
       typical: median,
     });
