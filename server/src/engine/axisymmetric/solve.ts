@@ -25,15 +25,20 @@ export function ringArea(el: Element2d): number {
   return 2 * Math.PI * (el.cx * el.length + el.dir * el.radius * el.radius * (Math.sin(theta1) - Math.sin(el.theta0)));
 }
 
-/** Element size for a 2d scene: `mesh size` as given, or a preset of the characteristic length, capped by an element budget. */
-export function elementSize(scene: { mesh: SceneAxisymmetric['mesh'] }, scale: number, pieces: Piece[], meshScale = 1): number {
-  let h = (scene.mesh.kind === 'size' ? scene.mesh.size : scale * AXISYMMETRIC_PRESETS[scene.mesh.preset]) * meshScale;
+/**
+ * Element size for a 2d scene: `mesh size` as given, or a preset of the characteristic length,
+ * enlarged when the estimated element count would pass the limit (options.maxPanels, at most
+ * MAX_ELEMENTS_2D).
+ */
+export function elementSize(scene: { mesh: SceneAxisymmetric['mesh'] }, scale: number, pieces: Piece[], options: Solve2dOptions = {}): { h: number; coarsened: boolean } {
+  let h = (scene.mesh.kind === 'size' ? scene.mesh.size : scale * AXISYMMETRIC_PRESETS[scene.mesh.preset]) * (options.meshScale ?? 1);
   if (!(h > 0) || !Number.isFinite(h)) h = scale * AXISYMMETRIC_PRESETS.normal;
   const total = pieces.reduce((s, p) => s + p.length, 0);
+  const limit = Math.min(MAX_ELEMENTS_2D, options.maxPanels ?? MAX_ELEMENTS_2D);
   // Graded pieces carry up to π/2 more elements.
   const estimate = (1.6 * total) / h;
-  if (estimate > MAX_ELEMENTS_2D) h *= estimate / MAX_ELEMENTS_2D;
-  return h;
+  if (estimate <= limit) return { h, coarsened: false };
+  return { h: h * (estimate / limit), coarsened: true };
 }
 
 export function solveAxisymmetric(scene: SceneAxisymmetric, options: Solve2dOptions = {}): Result | null {
@@ -81,7 +86,8 @@ export function solveAxisymmetric(scene: SceneAxisymmetric, options: Solve2dOpti
       mirror,
       infinityUnknown: false,
       pieces,
-      h: elementSize(scene, scale, pieces, options.meshScale),
+      ...elementSize(scene, scale, pieces, options),
+      diagnostics: [],
       area: ringArea,
       free,
       scale,

@@ -10,25 +10,26 @@
 // free line charges at zero, the potential far away tends to c, so "ground" (0 V) keeps its meaning
 // of a conductor held at 0 V; the Maxwell matrix then has zero row sums (per metre, a lone wire has
 // no capacitance to infinity).
-import type { Drive, SceneAxisymmetric, ScenePlanar, Vec2 } from '../../../../grammar/scene';
+import type { Diagnostic, Drive, Range, SceneAxisymmetric, ScenePlanar, Vec2 } from '../../../../grammar/scene';
 import { EPSILON_0 } from '../../../../grammar/scene';
 import { insideElectrode } from '../../../../grammar/geometry';
-import { applyDrives } from '../drives';
+import { applyDrives, unchargedFloating } from '../drives';
 import { changeBetweenLevels, richardson, NO_ESTIMATE } from '../convergence';
 import { createSolver, chooseSolver, denseOperator } from '../linear/solver';
+import type { SolveOptions } from '../index';
+import { SAFETY_CAUTION } from '../solve';
+import { sliceGrid as sliceDimensions } from '../evaluate';
+import { diagnostic } from '../../../../grammar/diagnostics';
+import { formatPoint, formatQuantity } from '../../format/quantity';
 import type { Convergence, ElectrodeResult, Outline, ProbeResult, Result, SliceResult } from '../result';
 import { gaussLegendre } from '../special/gauss-legendre';
 import { addElement, assemble, meanSurfaceField, type KernelAdd, type Mirror } from './bem2d';
 import { curvePoint, splitPiece, type Element2d, type Piece } from './elements';
 
-/** Options shared with the 3d solve: cancellation and how many mesh levels. */
 type Scene2d = SceneAxisymmetric | ScenePlanar;
 
-export interface Solve2dOptions {
-  /** Polled between stages and rows; a cancelled solve returns null. */
-  isCancelled?: () => boolean;
-  /** 2 (default): a coarse level for the convergence estimate, then the reported fine level; 1: fine only. */
-  levels?: number;
+/** The engine's SolveOptions (server/src/engine/index.ts), plus a mesh scale for tests. */
+export interface Solve2dOptions extends Pick<SolveOptions, 'maxPanels' | 'maxGridCells' | 'level' | 'convergence' | 'isCancelled'> {
   /** Multiplies the element size (tests and coarse previews). */
   meshScale?: number;
 }
@@ -52,8 +53,11 @@ export interface Space2d {
   /** Planar with no ground plane: potential at infinity as an unknown, total charge as an equation. */
   infinityUnknown: boolean;
   pieces: Piece[];
-  /** Element size of the reported (fine) level. */
+  /** Element size of the reported (fine) level, and whether it was enlarged to fit the element limit. */
   h: number;
+  coarsened: boolean;
+  /** Diagnostics the space raised while setting up (ignored ground planes...). */
+  diagnostics: Diagnostic[];
   /** Charge per unit surface density: ∫2πr ds (axisymmetric) or the length (planar, per metre). */
   area(el: Element2d): number;
   free: FreeSource[];
@@ -338,6 +342,51 @@ function joinPaths(paths: number[][], tol: number): number[][] {
   return out;
 }
 
+// ---- diagnostics after a solve (the same codes and wording as the 3d engine) ----
+
+const ZERO_RANGE: Range = { start: { line: 0, character: 0 }, end: { line: 0, character: 0 } };
+
+function postSolveDiagnostics(scene: Scene2d, setup: Space2d, electrodes: ElectrodeResult[], singular: boolean, diagnostics: Diagnostic[]): void {
+  if (setup.coarsened) {
+    diagnostics.push(diagnostic('VS405', ZERO_RANGE, `Mesh coarsened to fit the element limit; figures are less accurate than the mesh setting asks.`));
+  }
+  if (singular) {
+    diagnostics.push(diagnostic('VS409', ZERO_RANGE, 'The drive equations are singular: floating or fixed-charge electrodes could not be resolved; their potentials are reported as 0 V.'));
+  }
+  const freeAbs = setup.free.reduce((s, f) => s + Math.abs(f.total), 0);
+  for (const k of unchargedFloating(scene.electrodes.map((e) => e.drive), freeAbs)) {
+    const e = scene.electrodes[k];
+    diagnostics.push(diagnostic('VS404', e.nameRange, `Floating electrode ${e.name} has nothing to charge it: no electrode is driven and there is no free charge, so it sits at 0 V.`));
+  }
+  const perMetre = setup.space === 'planar';
+  electrodes.forEach((r, k) => {
+    const e = scene.electrodes[k];
+    const edge = r.maxFieldOnEdge
+      ? ' The peak sits on a sharp edge, where the computed field grows as the mesh is refined; model the edge radius for a meaningful figure.'
+      : '';
+    const where = ` at ${setup.space === 'axisymmetric' ? '(r, z) = ' : ''}${formatPoint(r.maxFieldAt)}${perMetre ? '' : ''}`;
+    if (scene.limit && r.maxField > scene.limit.field) {
+      diagnostics.push(
+        diagnostic(
+          'VS401',
+          e.nameRange,
+          `Peak field ${formatQuantity(r.maxField, 'field')} on ${e.name}${where} exceeds the limit ${formatQuantity(scene.limit.field, 'field')}.${edge} ${SAFETY_CAUTION}`,
+          { maxField: r.maxField, limit: scene.limit.field },
+        ),
+      );
+    } else if (scene.medium.strength !== null && r.maxField > scene.medium.strength) {
+      diagnostics.push(
+        diagnostic(
+          'VS402',
+          e.nameRange,
+          `Peak field ${formatQuantity(r.maxField, 'field')} on ${e.name}${where} is above the rough strength of the medium (${formatQuantity(scene.medium.strength, 'field')}): expect breakdown or corona.${edge} ${SAFETY_CAUTION}`,
+          { maxField: r.maxField, strength: scene.medium.strength },
+        ),
+      );
+    }
+  });
+}
+
 // ---- the pipeline ----
 
 export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions = {}): Result | null {
@@ -346,10 +395,11 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
   const eps = EPSILON_0 * scene.medium.permittivity;
   const k = scene.electrodes.length;
   const drives = scene.electrodes.map((e) => e.drive);
-  const levelCount = Math.max(1, Math.min(2, options.levels ?? 2));
+  const diagnostics: Diagnostic[] = [...setup.diagnostics];
+  const levelCount = options.level === 'coarse' || options.convergence === false ? 1 : 2;
   // The coarse level doubles the element size; when that barely changes the count (a polyline
   // finer than the mesh), it is skipped and no convergence estimate is given.
-  const meshes = [elementsFor(setup, setup.h)];
+  const meshes = [elementsFor(setup, options.level === 'coarse' ? 2 * setup.h : setup.h)];
   if (levelCount > 1) {
     const coarseMesh = elementsFor(setup, 2 * setup.h);
     if (coarseMesh.length < 0.8 * meshes[0].length) meshes.unshift(coarseMesh);
@@ -438,6 +488,7 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
   }
   timings.slices = performance.now() - t;
 
+  postSolveDiagnostics(scene, setup, electrodes, dFine.singular, diagnostics);
   const names = scene.electrodes.map((e) => e.name);
   let asym = 0;
   let diag = 0;
@@ -454,7 +505,7 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
     energy,
     probes,
     slices,
-    diagnostics: [],
+    diagnostics,
     stats: {
       panels: nFine,
       unknowns: setup.infinityUnknown ? nFine + 1 : nFine,
@@ -469,12 +520,9 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
     const v0 = Math.min(s.from[1], s.to[1]);
     const w = Math.abs(s.to[0] - s.from[0]);
     const hgt = Math.abs(s.to[1] - s.from[1]);
-    const cells = Math.max(1, Math.round(s.cells));
-    const step = Math.max(w, hgt) / cells;
-    const nu = Math.max(1, Math.round(w / step));
-    const nv = Math.max(1, Math.round(hgt / step));
-    const du = w / nu;
-    const dv = hgt / nv;
+    const maxCells = options.maxGridCells ?? 250000;
+    const { nu, nv, du, dv, reduced } = sliceDimensions(s, maxCells);
+    if (reduced) diagnostics.push(diagnostic('VS408', s.range, `Slice grid reduced to ${nu} × ${nv} cells to stay within the grid-cell limit (${maxCells}).`));
     const size = nu * nv;
     const potential = new Float64Array(size);
     const fieldU = new Float32Array(size);
