@@ -7,6 +7,8 @@ import type { Range, Scene } from '../../../grammar/scene';
 import { diagnostic } from '../../../grammar/diagnostics';
 import type { Result } from './result';
 import { createCache3d, solve3d, type Cache3d } from './solve';
+import { solveAxisymmetric } from './axisymmetric/solve';
+import { solvePlanar } from './planar/solve';
 
 export interface SolveOptions {
   /** Most panels in the finest mesh (default 20000); over it the mesh is coarsened with a warning. */
@@ -50,6 +52,8 @@ function unsolved(scene: Scene): Result {
 
 export function solveScene(scene: Scene, options: SolveOptions = {}): Result | null {
   const level = options.level ?? 'full';
+  if (scene.space === 'axisymmetric') return solveAxisymmetric(scene, options);
+  if (scene.space === 'planar') return solvePlanar(scene, options);
   if (scene.space !== '3d') return unsolved(scene);
   const cache = options.cache ?? createEngineCache();
   let c3 = cache.store.get('3d') as Cache3d | undefined;
