@@ -152,7 +152,7 @@ function evaluateWithUnit(operand: Expr | null, unitText: string, unitRange: Ran
 }
 
 function mapValue(v: EvalValue, range: Range, f: (q: Quantity) => Quantity): EvalValue {
-  return v.kind === 'scalar' ? { kind: 'scalar', q: f(v.q), range } : { kind: 'tuple', items: v.items.map(f), range };
+  return v.kind === 'scalar' ? { kind: 'scalar', q: { ...f(v.q), range }, range } : { kind: 'tuple', items: v.items.map(f), range };
 }
 
 function mismatch(a: Quantity, b: Quantity, opRange: Range, what: string, ctx: EvalContext): null {

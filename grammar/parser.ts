@@ -27,12 +27,21 @@ function listExpected(types: TokenType[]): string {
   return labels.slice(0, -1).join(', ') + ' or ' + labels[labels.length - 1];
 }
 
+const UNEXPECTED = 'Unexpected ';
+function unexpectedMessage(tok: IToken): string {
+  return `${UNEXPECTED}${describeToken(tok)}: expected an attribute or the end of the statement.`;
+}
+
 const messages: IParserErrorMessageProvider = {
   buildMismatchTokenMessage({ expected, actual }) {
+    if (expected === T.Identifier && T.keywordWords.has(actual.image)) {
+      return `Expected a name but found '${actual.image}', a reserved word; choose another name.`;
+    }
+    if (expected === EOF) return unexpectedMessage(actual);
     return `Expected ${describeTokenType(expected)} but found ${describeToken(actual)}.`;
   },
   buildNotAllInputParsedMessage({ firstRedundant }) {
-    return `Unexpected ${describeToken(firstRedundant)}: expected an attribute or the end of the statement.`;
+    return unexpectedMessage(firstRedundant);
   },
   buildNoViableAltMessage({ expectedPathsPerAlt, actual }) {
     const firsts = expectedPathsPerAlt.flatMap((alt) => alt.map((path) => path[0])).filter((t): t is TokenType => !!t);
@@ -362,7 +371,7 @@ export function parseText(text: string): ParsedText {
       const key = `${range.start.line}:${range.start.character}`;
       if (seen.has(key)) continue;
       seen.add(key);
-      const code = e.kind === 'NotAllInputParsedException' ? 'VS105' : 'VS103';
+      const code = e.kind === 'NotAllInputParsedException' || e.message.startsWith(UNEXPECTED) ? 'VS105' : 'VS103';
       diagnostics.push(diagnostic(code, range, e.message));
     }
     for (const s of statementsFromCst(parsed.cst)) {
