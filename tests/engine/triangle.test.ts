@@ -3,6 +3,9 @@ import {
   FAR_RATIO,
   gradientExact,
   gradientGauss,
+  panelGradient,
+  panelPotential,
+  panelPotentialAndGradient,
   potentialExact,
   potentialGauss,
   preparePanels,
@@ -132,5 +135,15 @@ describe('panel integrals of 1/R and its gradient', () => {
     const p = add(centroid, [60, -70, 40]);
     const I = potentialExact(P, 0, p[0], p[1], p[2]);
     expect(Math.abs(I - potentialGauss(P, 0, p[0], p[1], p[2])) / I).toBeLessThan(1e-8);
+  });
+
+  it('the combined potential-and-gradient kernel equals the separate ones, near and far', () => {
+    const out = new Float64Array(4), g = new Float64Array(3);
+    for (const p of [add(centroid, scale(normal, 0.2)), centroid, [3, -2, 4], add(B, [0.01, 0.02, -0.03])]) {
+      panelPotentialAndGradient(P, 0, p[0], p[1], p[2], out);
+      panelGradient(P, 0, p[0], p[1], p[2], g);
+      expect(out[0]).toBe(panelPotential(P, 0, p[0], p[1], p[2]));
+      for (let c = 0; c < 3; c++) expect(out[1 + c]).toBeCloseTo(g[c], 14);
+    }
   });
 });

@@ -8,7 +8,7 @@
 // with I_j = ∫_Tj 1/R dA (server/src/engine/kernels/triangle.ts). Reflecting the observation point
 // instead of the panel gives the same integral, since every image is an isometry.
 import type { Mesh } from '../mesh/types';
-import { panelGradient, panelPotential, preparePanels, type Panels } from '../kernels/triangle';
+import { panelPotential, panelPotentialAndGradient, preparePanels, type Panels } from '../kernels/triangle';
 import { reflect, type Image } from './images';
 
 export const INV_4PI = 1 / (4 * Math.PI);
@@ -60,8 +60,12 @@ export function assembleDense(sys: Bem3dSystem, isCancelled?: () => boolean): Fl
 
 /** Accuracy of far-field evaluation: 'precise' keeps the 7-point rule, 'grid' uses the centroid rule far away. */
 export type EvalMode = 'precise' | 'grid';
-/** Beyond this many panel diameters the 'grid' mode uses the one-point (centroid) rule: relative error ~1e-4 per panel. */
-export const GRID_FAR_RATIO = 8;
+/**
+ * Beyond this many panel diameters the 'grid' mode uses the one-point (centroid) rule: relative error
+ * at most 1e-3 per panel at 5 diameters (measured over random directions), less in sums, where the
+ * errors of differently oriented panels partly cancel. Enough for contour plots; probes use 'precise'.
+ */
+export const GRID_FAR_RATIO = 5;
 
 /**
  * Potential (V) and its gradient (V/m, so the field is its negative) at (x, y, z) of the scaled
@@ -80,7 +84,7 @@ export function surfacePotentialAndGradient(
   const P = sys.panels;
   const c = P.centroid;
   const r = [0, 0, 0];
-  const g = new Float64Array(3);
+  const g = new Float64Array(4);
   let phi = 0, gx = 0, gy = 0, gz = 0;
   const farRatioSq = GRID_FAR_RATIO * GRID_FAR_RATIO;
   for (const im of sys.images) {
@@ -102,11 +106,11 @@ export function surfacePotentialAndGradient(
         az -= q3 * dz;
         continue;
       }
-      p += w * panelPotential(P, j, rx, ry, rz);
-      panelGradient(P, j, rx, ry, rz, g);
-      ax += w * g[0];
-      ay += w * g[1];
-      az += w * g[2];
+      panelPotentialAndGradient(P, j, rx, ry, rz, g);
+      p += w * g[0];
+      ax += w * g[1];
+      ay += w * g[2];
+      az += w * g[3];
     }
     // The chain rule through the reflection: ∂/∂x_k of f(flip·x + shift) = flip_k·(∂f)_k.
     phi += im.sign * p;

@@ -246,3 +246,60 @@ export function panelGradient(P: Panels, j: number, x: number, y: number, z: num
   if (centroidDistSq(P, j, x, y, z) > P.farSq[j]) gradientGauss(P, j, x, y, z, out, at);
   else gradientExact(P, j, x, y, z, out, at);
 }
+
+/**
+ * I(r) and ∇I(r) over panel j together (one pass over the edges or Gauss points), written to
+ * out[at] (I) and out[at+1..at+3] (∇I): closed form near the panel, Gauss rule beyond FAR_RATIO.
+ */
+export function panelPotentialAndGradient(P: Panels, j: number, x: number, y: number, z: number, out: Float64Array, at = 0): void {
+  if (centroidDistSq(P, j, x, y, z) > P.farSq[j]) {
+    const g = P.gauss, w = P.gaussWeight;
+    let p = 0, gx = 0, gy = 0, gz = 0;
+    for (let q = GAUSS_POINTS * j, end = q + GAUSS_POINTS; q < end; q++) {
+      const dx = x - g[3 * q], dy = y - g[3 * q + 1], dz = z - g[3 * q + 2];
+      const r2 = dx * dx + dy * dy + dz * dz;
+      const inv = 1 / Math.sqrt(r2);
+      const s = w[q] * inv;
+      p += s;
+      const s3 = s * inv * inv;
+      gx -= s3 * dx;
+      gy -= s3 * dy;
+      gz -= s3 * dz;
+    }
+    out[at] = p;
+    out[at + 1] = gx;
+    out[at + 2] = gy;
+    out[at + 3] = gz;
+    return;
+  }
+  const v = P.vertices, o = 9 * j;
+  const nx = P.normal[3 * j], ny = P.normal[3 * j + 1], nz = P.normal[3 * j + 2];
+  const d = nx * (x - v[o]) + ny * (y - v[o + 1]) + nz * (z - v[o + 2]);
+  const ad = Math.abs(d);
+  const tiny = 1e-24 * P.diameter[j] * P.diameter[j];
+  let sumLog = 0, sumBeta = 0, gx = 0, gy = 0, gz = 0;
+  for (let k = 0; k < 3; k++) {
+    const a = o + 3 * k, b = o + 3 * ((k + 1) % 3);
+    const ax = v[a] - x, ay = v[a + 1] - y, az = v[a + 2] - z;
+    const bx = v[b] - x, by = v[b + 1] - y, bz = v[b + 2] - z;
+    const ux = P.outward[a], uy = P.outward[a + 1], uz = P.outward[a + 2];
+    const tx = P.tangent[a], ty = P.tangent[a + 1], tz = P.tangent[a + 2];
+    const t0 = ax * ux + ay * uy + az * uz;
+    const lm = ax * tx + ay * ty + az * tz;
+    const lp = bx * tx + by * ty + bz * tz;
+    const R0sq = t0 * t0 + d * d + tiny;
+    const Rm = Math.sqrt(ax * ax + ay * ay + az * az);
+    const Rp = Math.sqrt(bx * bx + by * by + bz * bz);
+    const f = logRPlusL(Rp, lp, R0sq) - logRPlusL(Rm, lm, R0sq);
+    if (t0 !== 0) sumLog += t0 * f;
+    gx -= ux * f;
+    gy -= uy * f;
+    gz -= uz * f;
+    if (ad > 0) sumBeta += Math.atan2(t0 * lp, R0sq + ad * Rp) - Math.atan2(t0 * lm, R0sq + ad * Rm);
+  }
+  const s = ad <= 1e-12 * P.diameter[j] ? 0 : d > 0 ? sumBeta : -sumBeta;
+  out[at] = sumLog - ad * sumBeta;
+  out[at + 1] = gx - s * nx;
+  out[at + 2] = gy - s * ny;
+  out[at + 3] = gz - s * nz;
+}
