@@ -151,24 +151,3 @@ export function addAllElements(
     addElement(elements[j], x, y, kernel, mirror, tau[j], field, acc);
   }
 }
-
-/**
- * Principal-value field at element i's collocation point (the mean of the two faces' fields), from
- * all elements: the mean of the fields a small step δ = L/1000 to either side along the normal,
- * which cancels the ±τ/2 jump of the element's own density (an O(δ²) approximation).
- */
-export function meanSurfaceField(
-  elements: Element2d[],
-  tau: Float64Array,
-  i: number,
-  kernel: KernelAdd,
-  mirror: Mirror | null,
-): [number, number] {
-  const el = elements[i];
-  const delta = 1e-3 * el.length;
-  const plus = new Float64Array(3);
-  const minus = new Float64Array(3);
-  addAllElements(elements, tau, el.mx + delta * el.nx, el.my + delta * el.ny, kernel, mirror, true, plus);
-  addAllElements(elements, tau, el.mx - delta * el.nx, el.my - delta * el.ny, kernel, mirror, true, minus);
-  return [0.5 * (plus[1] + minus[1]), 0.5 * (plus[2] + minus[2])];
-}

@@ -138,6 +138,12 @@ export function polylinePieces(
   options: { cornerDegrees?: number; gradeOpenEnd?: (x: number, y: number) => boolean; skip?: (a: [number, number], b: [number, number]) => boolean } = {},
 ): Piece[] {
   const corner = ((options.cornerDegrees ?? 20) * Math.PI) / 180;
+  // Repeated points (a closed profile written with its first point again at the end) add nothing.
+  points = points.filter((p, i) => {
+    if (i === points.length - 1 && !closed) return true;
+    const q = points[(i + 1) % points.length];
+    return p[0] !== q[0] || p[1] !== q[1];
+  });
   const n = points.length;
   const sides = closed ? n : n - 1;
   const keep: boolean[] = [];
