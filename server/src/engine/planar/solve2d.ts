@@ -266,8 +266,11 @@ function surfacePeaks(setup: Space2d, level: Level, d: Driven, k: number): Surfa
 const FAR_RULE = 3;
 /** Beyond this many element lengths the cached 3-point rule is used. */
 const FAR_RATIO = 12;
-/** In 'grid' mode (slices), beyond this many lengths a single midpoint sample (relative error ≈ (L/d)²/24 < 1e-4). */
-const GRID_FAR_RATIO = 25;
+/**
+ * In 'grid' mode (slices), beyond this many lengths a single midpoint sample: about (L/d)²/24 relative
+ * per element, 1e-4 or so on a whole grid value (measured on a sphere); probes stay 'precise'.
+ */
+const GRID_FAR_RATIO = 40;
 
 /** Potential and field at (u, v) in the scene's coordinates. */
 function evaluate(setup: Space2d, elements: Element2d[], far: Float64Array, d: Driven, u: number, v: number, mode: 'precise' | 'grid', acc: Float64Array): void {
