@@ -1,0 +1,65 @@
+// The fast solver for a panel mesh, with its parallel assembly: the entry points the 3D solver
+// and the benchmark call. See fast-solver.ts for the method and hmatrix.ts for why.
+import { preparePanels, type Panels } from '../kernels/triangle';
+import { buildFastSolver, type FastSolver, type FastSolverOptions } from './fast-solver';
+import { type BlockTask, type DenseBlock, type LowRankBlock } from './hmatrix';
+import { runAssemble, unpackBlocks, type AssembleJob, type PackedBlocks } from './jobs';
+import { panelEntrySource, panelExtent, type MirrorPlane } from './panel-entries';
+import { fastThreads, runParallel, shared } from './pool';
+
+export interface PanelSystem {
+  /** Panel vertices and triangles (a Mesh will do). */
+  vertices: Float64Array;
+  triangles: Uint32Array;
+  /** Collocation points, 3 per panel (the centroids). */
+  points: Float64Array;
+  /** Factor on ∫1/R: 1/(4π ε) for densities in C/m². */
+  scale: number;
+  mirror: MirrorPlane | null;
+}
+
+export interface PanelSolverOptions extends FastSolverOptions {
+  /** Threads to use, the calling one included (default: all cores when the worker code is available). */
+  threads: number;
+}
+
+/** Builds the H-matrix solver for a panel system, filling blocks on several threads when it can. */
+export function buildPanelSolver(sys: PanelSystem, options: Partial<PanelSolverOptions> = {}, panels?: Panels): FastSolver {
+  const P = panels ?? preparePanels(sys);
+  const src = panelEntrySource(P, sys.points, sys.scale, sys.mirror);
+  const threads = fastThreads(options.threads);
+  const filler = threads > 1 ? (tasks: BlockTask[], order: Int32Array, eps: number) => fillParallel(sys, P, tasks, order, eps, threads) : undefined;
+  return buildFastSolver(src, sys.points, panelExtent(P), options, filler);
+}
+
+function fillParallel(sys: PanelSystem, P: Panels, tasks: BlockTask[], order: Int32Array, eps: number, threads: number): (DenseBlock | LowRankBlock)[] {
+  // Far blocks first (they vary most in cost), then the dense ones; chunks small enough to balance.
+  const sorted = [...tasks].sort((a, b) => Number(b.far) - Number(a.far) || b.m * b.n - a.m * a.n);
+  const flat = new Int32Array(5 * sorted.length);
+  sorted.forEach((t, k) => flat.set([t.r0, t.m, t.c0, t.n, t.far ? 1 : 0], 5 * k));
+  const job: AssembleJob = {
+    kind: 'assemble',
+    vertices: shared(sys.vertices),
+    triangles: shared(sys.triangles),
+    points: shared(sys.points),
+    scale: sys.scale,
+    mirror: sys.mirror,
+    order: shared(order),
+    tasks: shared(flat),
+    eps,
+    counter: new Int32Array(new SharedArrayBuffer(4)),
+    chunk: 16,
+  };
+  let mine: (DenseBlock | LowRankBlock)[] = [];
+  const replies = runParallel(threads, job as unknown as Record<string, unknown>, () => {
+    mine = runAssemble(job, P);
+  });
+  if (!replies) {
+    // A worker failed: do it all here (the reference path).
+    job.counter[0] = 0;
+    return runAssemble(job, P);
+  }
+  for (const r of replies) mine = mine.concat(unpackBlocks(r as PackedBlocks));
+  return mine;
+}
+

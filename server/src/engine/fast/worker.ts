@@ -1,0 +1,30 @@
+// The fast solver's worker thread: receives jobs on its port and runs them (server/src/engine/fast/jobs.ts).
+// Bundled on its own as fast-worker.js, or started from any bundle that calls startFastWorker()
+// when `isFastWorker()` is true.
+import { isMainThread, workerData, type MessagePort } from 'node:worker_threads';
+import { packBlocks, runAssemble, runEvaluate, type AssembleJob, type EvaluateJob } from './jobs';
+
+export function isFastWorker(): boolean {
+  return !isMainThread && (workerData as { voltscapeFastWorker?: boolean } | null)?.voltscapeFastWorker === true;
+}
+
+export function startFastWorker(): void {
+  const port = (workerData as { port: MessagePort }).port;
+  port.on('message', (msg: (AssembleJob | EvaluateJob) & { done: Int32Array }) => {
+    try {
+      if (msg.kind === 'assemble') {
+        const packed = packBlocks(runAssemble(msg));
+        port.postMessage({ headers: packed.headers, data: packed.data }, [packed.headers.buffer as ArrayBuffer, packed.data.buffer as ArrayBuffer]);
+      } else {
+        runEvaluate(msg);
+        port.postMessage({ ok: true });
+      }
+    } catch (e) {
+      port.postMessage({ error: String(e) });
+    }
+    Atomics.add(msg.done, 0, 1);
+    Atomics.notify(msg.done, 0);
+  });
+}
+
+if (isFastWorker()) startFastWorker();

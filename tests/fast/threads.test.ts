@@ -1,0 +1,66 @@
+import { afterAll, describe, expect, it } from 'vitest';
+import { buildSync } from 'esbuild';
+import { preparePanels } from '../../server/src/engine/kernels/triangle';
+import { buildPanelSolver } from '../../server/src/engine/fast/panel-solver';
+import { FieldEvaluator } from '../../server/src/engine/fast/field-evaluator';
+import { closeFastPool, fastThreads, setFastWorkerScript } from '../../server/src/engine/fast/pool';
+import { boxSurface, icosphere, joinMeshes } from './fixtures';
+
+// Worker threads cannot load TypeScript: bundle the worker entry the way the build does.
+const code = buildSync({ entryPoints: ['server/src/engine/fast/worker.ts'], bundle: true, platform: 'node', format: 'cjs', write: false }).outputFiles[0].text;
+
+const EPS0 = 8.8541878188e-12; // CODATA 2022 (references.md)
+const mesh = joinMeshes([icosphere(1, 3), boxSurface([1, 1, 1], 5, [2.5, 0, 0], 1)]);
+const P = preparePanels(mesh);
+const sys = { vertices: mesh.vertices, triangles: mesh.triangles, points: mesh.centroid, scale: 1 / (4 * Math.PI * EPS0), mirror: { axis: 2 as const, at: -1.5 } };
+
+afterAll(() => {
+  setFastWorkerScript(null);
+  closeFastPool();
+});
+
+describe('worker threads give the same numbers as one thread', () => {
+  it('fills the H-matrix blocks on two threads with the same product', () => {
+    setFastWorkerScript({ code });
+    expect(fastThreads(2)).toBe(2);
+    const two = buildPanelSolver(sys, { threads: 2 }, P);
+    const one = buildPanelSolver(sys, { threads: 1 }, P);
+    expect(two.stats.blocks).toBe(one.stats.blocks);
+    const x = Float64Array.from({ length: P.count }, (_, i) => Math.sin(i));
+    const y1 = new Float64Array(P.count), y2 = new Float64Array(P.count);
+    one.apply(x, y1);
+    two.apply(x, y2);
+    // The same blocks by the same arithmetic, summed in another order: equal to rounding.
+    let e = 0, s = 0;
+    for (let i = 0; i < P.count; i++) {
+      e = Math.max(e, Math.abs(y1[i] - y2[i]));
+      s = Math.max(s, Math.abs(y1[i]));
+    }
+    expect(e / s).toBeLessThan(1e-12);
+  });
+
+  it('evaluates a grid on two threads exactly as on one', () => {
+    setFastWorkerScript({ code });
+    const sigma = Float64Array.from({ length: P.count }, (_, j) => 1 + mesh.centroid[3 * j + 1]);
+    const G = 64;
+    const pts = new Float64Array(3 * G * G);
+    for (let k = 0; k < G * G; k++) pts.set([-2 + (6 * (k % G)) / G, -2 + (4 * Math.floor(k / G)) / G, 0.2], 3 * k);
+    const two = new FieldEvaluator(mesh, sigma, sys.scale, sys.mirror, { threads: 2 }, P).evaluate(pts);
+    const one = new FieldEvaluator(mesh, sigma, sys.scale, sys.mirror, { threads: 1 }, P).evaluate(pts);
+    expect(Array.from(two.potential)).toEqual(Array.from(one.potential));
+    expect(Array.from(two.field)).toEqual(Array.from(one.field));
+  });
+});
+
+describe('evaluation with a grounded plane', () => {
+  it('gives zero potential on the plane and a field normal to it (method of images, Jackson sec. 2.1)', () => {
+    const sigma = Float64Array.from({ length: P.count }, (_, j) => 1 + mesh.centroid[3 * j]);
+    const E = new FieldEvaluator(mesh, sigma, sys.scale, sys.mirror, { threads: 1 }, P);
+    const above = E.at(0.3, 0.2, 0);
+    for (const [x, y] of [[0, 0], [2, 1], [-3, 0.5]]) {
+      const [phi, ex, ey] = E.at(x, y, -1.5);
+      expect(Math.abs(phi)).toBeLessThan(1e-12 * Math.abs(above[0]));
+      expect(Math.hypot(ex, ey)).toBeLessThan(1e-12 * Math.hypot(above[1], above[2], above[3]));
+    }
+  });
+});
