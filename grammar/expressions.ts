@@ -78,7 +78,7 @@ export function evaluate(e: Expr | null, ctx: EvalContext): EvalValue | null {
     case 'unary': {
       const v = evaluate(e.operand, ctx);
       if (!v || e.op === '+') return v ? { ...v, range: e.range } : null;
-      return mapValue(v, e.range, (q) => ({ value: -q.value, dim: q.dim, range: q.range }));
+      return mapValue(v, e.range, (q) => ({ value: 0 - q.value, dim: q.dim, range: q.range }));
     }
     case 'group': {
       const items = e.items.map((i) => evaluate(i, ctx));
@@ -148,7 +148,7 @@ function evaluateWithUnit(operand: Expr | null, unitText: string, unitRange: Ran
   uses.set(unitText, (uses.get(unitText) ?? 0) + 1);
   ctx.unitUse.set(key, uses);
   if (!v) return null;
-  return mapValue(v, range, (q) => ({ value: applyUnit(q.value, unit), dim: addDim(q.dim, unit.dim), range: q.range }));
+  return finite(mapValue(v, range, (q) => ({ value: applyUnit(q.value, unit), dim: addDim(q.dim, unit.dim), range: q.range })), range, ctx);
 }
 
 function mapValue(v: EvalValue, range: Range, f: (q: Quantity) => Quantity): EvalValue {

@@ -1,7 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { analyzeText, findSymbol, hasErrors, symbolAt } from '../../grammar/index';
-import { clean, near } from './check';
-import { DEFLECTOR } from './parser.test';
+import { DEFLECTOR, clean, near } from './check';
 
 describe('analysis of the example scene into SI', () => {
   const a = analyzeText(DEFLECTOR);

@@ -1,27 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { analyzeText, nodeAt, pathAt } from '../../grammar/index';
 import { parseText } from '../../grammar/parser';
-
-/** The example scene of the design (a scenario of the project's own). */
-export const DEFLECTOR = `scene "Electrostatic deflector bench"
-space 3d
-medium air
-mesh size 6 mm
-
-let gap = 40 mm
-let drive = 8 kV
-
-electrode upper plate center (0, 0, gap/2) size (160, 60) mm normal z potential drive/2
-electrode lower plate center (0, 0, -gap/2) size (160, 60) mm normal z potential -drive/2
-electrode shield cylinder from (-150, 0, -90) mm to (-150, 0, 90) mm radius 12 mm floating
-ground plane at z = -120 mm
-
-charge beam line from (-200, 0, 0) mm to (200, 0, 0) mm density -0.2 nC/m
-
-slice xz at y = 0 from (-220, -130) mm to (220, 130) mm cells 220
-probe midline line from (0, 0, -gap/2) to (0, 0, gap/2) samples 100
-limit field 1.5 kV/mm
-`;
+import { DEFLECTOR } from './check';
 
 const noSyntaxErrors = (text: string) => {
   const parsed = parseText(text);
