@@ -78,7 +78,7 @@ const mutation = fc.oneof(
   fc.record({ kind: fc.constant('replace' as const), at: fc.nat(), text: fc.constantFrom(...TOKENS) }),
 );
 
-function mutate(text: string, edits: fc.RecordValue<{ kind: string; at: number; length?: number; text?: string }>[]): string {
+function mutate(text: string, edits: { kind: string; at: number; length?: number; text?: string }[]): string {
   let s = text;
   for (const e of edits) {
     const at = s.length === 0 ? 0 : e.at % (s.length + 1);
