@@ -78,9 +78,33 @@ interface Level {
   solver: string;
 }
 
-/** Elements of size about h; arcs get at least one element per 20°. */
+/** An electrode's outline gets elements no larger than this fraction of its own size (half its box diagonal). */
+const OWN_SIZE_FRACTION = 1 / 20;
+
+/**
+ * Elements of size about h, and no larger than a twentieth of their electrode's own size (so a small
+ * electrode in a large scene is still resolved); arcs get at least one element per 20°.
+ */
 function elementsFor(setup: Space2d, h: number): Element2d[] {
-  return setup.pieces.flatMap((p) => splitPiece(p, h, p.kind === 'arc' ? Math.max(2, Math.ceil(p.length / (p.radius * 0.35))) : 1));
+  const own = new Map<number, number>();
+  for (const e of new Set(setup.pieces.map((p) => p.electrode))) {
+    const q = new Float64Array(4);
+    let minX = Infinity, minY = Infinity, maxX = -Infinity, maxY = -Infinity;
+    for (const p of setup.pieces) {
+      if (p.electrode !== e) continue;
+      for (let i = 0; i <= 8; i++) {
+        curvePoint(p, (p.length * i) / 8, q);
+        minX = Math.min(minX, q[0]);
+        maxX = Math.max(maxX, q[0]);
+        minY = Math.min(minY, q[1]);
+        maxY = Math.max(maxY, q[1]);
+      }
+    }
+    own.set(e, 0.5 * Math.hypot(maxX - minX, maxY - minY) * OWN_SIZE_FRACTION * (h / setup.h));
+  }
+  return setup.pieces.flatMap((p) =>
+    splitPiece(p, Math.min(h, own.get(p.electrode) || h), p.kind === 'arc' ? Math.max(2, Math.ceil(p.length / (p.radius * 0.35))) : 1),
+  );
 }
 
 function solveLevel(setup: Space2d, scene: Scene2d, elements: Element2d[], eps: number, options: Solve2dOptions, timings: Record<string, number>, tag: string): Level | null {
