@@ -1,6 +1,7 @@
 // Potential and field at user-chosen places of a solved 3d scene: probes (points and lines) and slice
 // grids (values at cell centres, row-major, see SliceResult). Cells inside a solid conductor take its
-// potential and NaN field (grammar/geometry.ts insideElectrode), so contours need no holes. Grids
+// potential and NaN field (grammar/geometry.ts insideElectrode), so contours need no holes; a cell
+// centre that falls on a point or line charge takes the value a quarter cell away. Grids
 // respect a cell limit: a larger slice is evaluated on a coarser grid, with a warning.
 import { insideElectrode } from '../../../grammar/geometry';
 import type { Diagnostic, Scene3d, Slice } from '../../../grammar/scene';
@@ -95,7 +96,14 @@ export function evaluateSlices(
           fieldU[idx] = fieldV[idx] = fieldMagnitude[idx] = NaN;
           continue;
         }
-        const f = potentialAndField(state, p[0], p[1], p[2], 'grid');
+        let f = potentialAndField(state, p[0], p[1], p[2], 'grid');
+        if (!f.every(Number.isFinite)) {
+          // The cell centre sits on a point or line charge: take the value a quarter cell off it.
+          const q = [...p];
+          q[iu] += 0.25 * du;
+          q[iv] += 0.25 * dv;
+          f = potentialAndField(state, q[0], q[1], q[2], 'grid');
+        }
         potential[idx] = f[0];
         fieldU[idx] = f[1 + iu];
         fieldV[idx] = f[1 + iv];

@@ -173,39 +173,44 @@ function energy(scene: Scene3d, out: LevelOutcome, images: Image[]): number {
   return w;
 }
 
-/** Smallest gaps between electrodes (and to ground planes) against the local panel size. */
-function gapDiagnostics(scene: Scene3d, mesh: Mesh, diameter: Float64Array, diagnostics: Diagnostic[]): void {
+/**
+ * Smallest gaps between electrodes (and to ground planes) against the panel size beside them, at the
+ * mesh setting's own size (a coarse-level solve scales its panels back by `scale`), one warning per
+ * pair. Panel size: √(2·area), the leg of a right isosceles panel of that area.
+ */
+function gapDiagnostics(scene: Scene3d, mesh: Mesh, scale: number, diagnostics: Diagnostic[]): void {
   const K = scene.electrodes.length;
   const c = mesh.centroid;
-  // best[a]: the tightest gap seen from electrode a's panels, relative to their size.
-  const worst: { ratio: number; gap: number; h: number; other: string }[] = Array.from({ length: K }, () => ({ ratio: Infinity, gap: 0, h: 0, other: '' }));
+  const worst = new Map<string, { ratio: number; gap: number; h: number; a: number; other: string }>();
+  const consider = (key: string, a: number, other: string, gap: number, h: number) => {
+    const w = worst.get(key);
+    if (!w || gap / h < w.ratio) worst.set(key, { ratio: gap / h, gap, h, a, other });
+  };
   for (let j = 0; j < mesh.area.length; j++) {
     const a = mesh.electrode[j];
     const p = [c[3 * j], c[3 * j + 1], c[3 * j + 2]];
-    const h = diameter[j];
+    const h = Math.sqrt(2 * mesh.area[j]) / scale;
     for (let b = 0; b < K; b++) {
       if (b === a) continue;
       const gap = conductorDistance(scene, b, p);
-      if (gap >= 0 && gap / h < worst[a].ratio) worst[a] = { ratio: gap / h, gap, h, other: scene.electrodes[b].name };
+      if (gap >= 0) consider(a < b ? `${a}|${b}` : `${b}|${a}`, a, scene.electrodes[b].name, gap, h);
     }
     for (const g of scene.groundPlanes) {
-      const gap = Math.abs(p[{ x: 0, y: 1, z: 2 }[g.axis]] - g.at);
-      if (gap / h < worst[a].ratio) worst[a] = { ratio: gap / h, gap, h, other: 'the ground plane' };
+      consider(`${a}|ground`, a, 'the ground plane', Math.abs(p[{ x: 0, y: 1, z: 2 }[g.axis]] - g.at), h);
     }
   }
-  worst.forEach((w, a) => {
-    if (w.ratio < GAP_PANELS) {
-      const e = scene.electrodes[a];
-      diagnostics.push(
-        diagnostic(
-          'VS403',
-          e.nameRange,
-          `Mesh too coarse for the gap of ${formatQuantity(w.gap, 'length')} between ${e.name} and ${w.other}: panels there are ` +
-            `${formatQuantity(w.h, 'length')} across. Set a mesh size of ${formatQuantity(w.gap / GAP_PANELS, 'length')} or less for reliable fields.`,
-        ),
-      );
-    }
-  });
+  for (const w of worst.values()) {
+    if (w.ratio >= GAP_PANELS) continue;
+    const e = scene.electrodes[w.a];
+    diagnostics.push(
+      diagnostic(
+        'VS403',
+        e.nameRange,
+        `Mesh too coarse for the gap of ${formatQuantity(w.gap, 'length')} between ${e.name} and ${w.other}: panels there are about ` +
+          `${formatQuantity(w.h, 'length')} across. Set a mesh size of ${formatQuantity(w.gap / GAP_PANELS, 'length')} or less for reliable fields.`,
+      ),
+    );
+  }
 }
 /** A gap should span at least this many panel sizes (common practice for collocation BEM). */
 export const GAP_PANELS = 1;
@@ -224,10 +229,12 @@ export function solve3d(scene: Scene3d, o: Solve3dOptions): Result | null {
   const scales = o.level === 'coarse' ? [2] : o.convergence ? [2, 1] : [1];
   const outcomes: LevelOutcome[] = [];
   let coarsened = false;
+  let fineScale = 1;
   let t = performance.now();
   for (const scale of scales) {
     const m = levelMesh(scene, scale, o.maxPanels, o.cache, o.solver);
     coarsened ||= m.coarsened;
+    fineScale = m.scale;
     const out = solveAt(scene, m.mesh, `${geometry}|${m.scale}|${o.solver ?? 'auto'}`, images, o);
     if (!out) return null;
     outcomes.push(out);
@@ -323,7 +330,7 @@ export function solve3d(scene: Scene3d, o: Solve3dOptions): Result | null {
       );
     }
   });
-  gapDiagnostics(scene, mesh, fine.state.sys.panels.diameter, diagnostics);
+  gapDiagnostics(scene, mesh, fineScale, diagnostics);
 
   timings.total = performance.now() - t0;
   return {
