@@ -10,9 +10,14 @@ import { boxSurface, icosphere, joinMeshes } from './fixtures';
 const code = buildSync({ entryPoints: ['server/src/engine/fast/worker.ts'], bundle: true, platform: 'node', format: 'cjs', write: false }).outputFiles[0].text;
 
 const EPS0 = 8.8541878188e-12; // CODATA 2022 (references.md)
+// A grounded plane z = −1.5: the identity and the mirror image with opposite sign.
+const GROUND = [
+  { sign: 1, flip: [1, 1, 1], shift: [0, 0, 0] },
+  { sign: -1, flip: [1, 1, -1], shift: [0, 0, -3] },
+];
 const mesh = joinMeshes([icosphere(1, 3), boxSurface([1, 1, 1], 5, [2.5, 0, 0], 1)]);
 const P = preparePanels(mesh);
-const sys = { vertices: mesh.vertices, triangles: mesh.triangles, points: mesh.centroid, scale: 1 / (4 * Math.PI * EPS0), mirror: { axis: 2 as const, at: -1.5 } };
+const sys = { vertices: mesh.vertices, triangles: mesh.triangles, points: mesh.centroid, scale: 1 / (4 * Math.PI * EPS0), images: GROUND };
 
 afterAll(() => {
   setFastWorkerScript(null);
@@ -45,8 +50,8 @@ describe('worker threads give the same numbers as one thread', () => {
     const G = 64;
     const pts = new Float64Array(3 * G * G);
     for (let k = 0; k < G * G; k++) pts.set([-2 + (6 * (k % G)) / G, -2 + (4 * Math.floor(k / G)) / G, 0.2], 3 * k);
-    const two = new FieldEvaluator(mesh, sigma, sys.scale, sys.mirror, { threads: 2 }, P).evaluate(pts);
-    const one = new FieldEvaluator(mesh, sigma, sys.scale, sys.mirror, { threads: 1 }, P).evaluate(pts);
+    const two = new FieldEvaluator(mesh, sigma, sys.scale, sys.images, { threads: 2 }, P).evaluate(pts);
+    const one = new FieldEvaluator(mesh, sigma, sys.scale, sys.images, { threads: 1 }, P).evaluate(pts);
     expect(Array.from(two.potential)).toEqual(Array.from(one.potential));
     expect(Array.from(two.field)).toEqual(Array.from(one.field));
   });
@@ -55,7 +60,7 @@ describe('worker threads give the same numbers as one thread', () => {
 describe('evaluation with a grounded plane', () => {
   it('gives zero potential on the plane and a field normal to it (method of images, Jackson sec. 2.1)', () => {
     const sigma = Float64Array.from({ length: P.count }, (_, j) => 1 + mesh.centroid[3 * j]);
-    const E = new FieldEvaluator(mesh, sigma, sys.scale, sys.mirror, { threads: 1 }, P);
+    const E = new FieldEvaluator(mesh, sigma, sys.scale, sys.images, { threads: 1 }, P);
     const above = E.at(0.3, 0.2, 0);
     for (const [x, y] of [[0, 0], [2, 1], [-3, 0.5]]) {
       const [phi, ex, ey] = E.at(x, y, -1.5);

@@ -1,10 +1,11 @@
 // Potential and field of the solved panel charges at many points (slice grids, probe lines, field
 // lines), by the treecode (treecode.ts), split over threads for large batches.
-//   φ(x) = scale·Σ_j σ_j (I_j(x) − I_j(x′)),   E = −∇φ,
-// with x′ the mirror image of x in the grounded plane, if any (images: Jackson, sec. 2.1).
+//   φ(x) = scale·Σ_images sign·Σ_j σ_j I_j(image(x)),   E = −∇φ,
+// with image(x) = flip·x + shift for each grounded-plane image, the identity included (Jackson,
+// sec. 2.1-2.2); by the chain rule ∂/∂x_k of I(image(x)) = flip_k·(∂_k I)(image(x)).
 import { preparePanels, type Panels } from '../kernels/triangle';
 import { runEvaluate, type EvaluateJob } from './jobs';
-import type { MirrorPlane } from './panel-entries';
+import { IDENTITY, type ImageMap } from './panel-entries';
 import { fastThreads, runParallel, shared } from './pool';
 import { buildPanelTree, evaluateTree, setDensities, type PanelTree } from './treecode';
 
@@ -34,7 +35,7 @@ export class FieldEvaluator {
     mesh: { vertices: Float64Array; triangles: Uint32Array },
     sigma: Float64Array,
     private readonly scale: number,
-    private readonly mirror: MirrorPlane | null = null,
+    private readonly images: readonly ImageMap[] = IDENTITY,
     options: Partial<EvaluatorOptions> = {},
     panels?: Panels,
   ) {
@@ -52,15 +53,14 @@ export class FieldEvaluator {
   /** Values at many points (3 coordinates each). */
   evaluate(points: Float64Array, theta = this.options.theta): FieldValues {
     const count = points.length / 3;
-    const raw = this.sums(points, count, theta);
-    if (this.mirror) {
-      const img = Float64Array.from(points);
-      for (let i = 0; i < count; i++) img[3 * i + this.mirror.axis] = 2 * this.mirror.at - img[3 * i + this.mirror.axis];
-      const rawImg = this.sums(img, count, theta);
-      // ∇_x of I(x′) is the gradient at x′ with the mirrored component flipped.
+    const raw = new Float64Array(4 * count);
+    for (const im of this.images) {
+      const img = new Float64Array(3 * count);
+      for (let i = 0; i < 3 * count; i++) img[i] = im.flip[i % 3] * points[i] + im.shift[i % 3];
+      const part = this.sums(img, count, theta);
       for (let i = 0; i < count; i++) {
-        raw[4 * i] -= rawImg[4 * i];
-        for (let c = 0; c < 3; c++) raw[4 * i + 1 + c] -= c === this.mirror.axis ? -rawImg[4 * i + 1 + c] : rawImg[4 * i + 1 + c];
+        raw[4 * i] += im.sign * part[4 * i];
+        for (let c = 0; c < 3; c++) raw[4 * i + 1 + c] += im.sign * im.flip[c] * part[4 * i + 1 + c];
       }
     }
     const potential = new Float64Array(count), field = new Float64Array(3 * count);

@@ -3,7 +3,7 @@
 // points. Each thread takes chunks from a shared atomic counter until none are left.
 import { preparePanels, type Panels } from '../kernels/triangle';
 import { fillBlock, isLowRank, type BlockTask, type DenseBlock, type LowRankBlock } from './hmatrix';
-import { panelEntrySource, type MirrorPlane } from './panel-entries';
+import { panelEntrySource, type ImageMap } from './panel-entries';
 import { evaluateTree, type PanelTree } from './treecode';
 
 /** What a thread needs to fill blocks of the panel matrix: plain arrays only (they cross threads). */
@@ -13,7 +13,7 @@ export interface AssembleJob {
   triangles: Uint32Array;
   points: Float64Array;
   scale: number;
-  mirror: MirrorPlane | null;
+  images: ImageMap[] | undefined;
   order: Int32Array;
   /** 5 per task: r0, m, c0, n, far (0/1). */
   tasks: Int32Array;
@@ -31,7 +31,7 @@ export interface PackedBlocks {
 
 export function runAssemble(job: AssembleJob, P?: Panels): (DenseBlock | LowRankBlock)[] {
   const panels = P ?? preparePanels({ vertices: job.vertices, triangles: job.triangles });
-  const src = panelEntrySource(panels, job.points, job.scale, job.mirror);
+  const src = panelEntrySource(panels, job.points, job.scale, job.images);
   const out: (DenseBlock | LowRankBlock)[] = [];
   const count = job.tasks.length / 5;
   for (;;) {

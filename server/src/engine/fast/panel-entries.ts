@@ -1,29 +1,35 @@
 // Matrix entries of the 3D panel system for the fast solver: the potential at collocation point i
-// of a unit surface density on panel j,
-//   A_ij = scale · (I_j(x_i) − I_j(x_i′)),   I_j(x) = ∫_Tj 1/|x − y| dA_y,
-// with x_i′ the mirror image of x_i in an optional grounded plane (method of images: the mirrored
-// panel carries the opposite charge; Jackson, Classical Electrodynamics, sec. 2.1-2.2).
-// scale is 1/(4π ε) for densities in C/m². The panel integrals are the exact ones near the panel
-// and a 7-point Gauss rule far from it (server/src/engine/kernels/triangle.ts).
+// of a unit surface density on panel j, summed over the images of grounded planes,
+//   A_ij = scale · Σ_images sign · I_j(image(x_i)),   I_j(x) = ∫_Tj 1/|x − y| dA_y,
+// image(x) = flip·x + shift (method of images, Jackson, Classical Electrodynamics, sec. 2.1-2.2;
+// reflecting the observation point instead of the panel gives the same integral). The identity
+// (sign +1) is one of the images. The panel integrals are exact near the panel and a 7-point
+// Gauss rule far from it (server/src/engine/kernels/triangle.ts). This is the same entry as the 3D
+// system's (server/src/engine/bem3d/system.ts) with scale 1/(4π).
 import { panelPotential, type Panels } from '../kernels/triangle';
 import type { EntrySource } from './aca';
 
-export interface MirrorPlane {
-  axis: 0 | 1 | 2;
-  at: number;
+/** One image: x′ = flip·x + shift, charge times sign. */
+export interface ImageMap {
+  sign: number;
+  flip: readonly number[];
+  shift: readonly number[];
 }
 
-export function panelEntrySource(P: Panels, points: Float64Array, scale: number, mirror: MirrorPlane | null = null): EntrySource {
-  const at = (i: number, j: number): number => {
-    const x = points[3 * i], y = points[3 * i + 1], z = points[3 * i + 2];
-    let v = panelPotential(P, j, x, y, z);
-    if (mirror) {
-      const m = [x, y, z];
-      m[mirror.axis] = 2 * mirror.at - m[mirror.axis];
-      v -= panelPotential(P, j, m[0], m[1], m[2]);
-    }
-    return scale * v;
-  };
+export const IDENTITY: ImageMap[] = [{ sign: 1, flip: [1, 1, 1], shift: [0, 0, 0] }];
+
+export function panelEntrySource(P: Panels, points: Float64Array, scale: number, images: readonly ImageMap[] = IDENTITY): EntrySource {
+  const plain = images.length === 1 && images[0].sign === 1 && images[0].flip.every((f) => f === 1) && images[0].shift.every((s) => s === 0);
+  const at = plain
+    ? (i: number, j: number): number => scale * panelPotential(P, j, points[3 * i], points[3 * i + 1], points[3 * i + 2])
+    : (i: number, j: number): number => {
+        const x = points[3 * i], y = points[3 * i + 1], z = points[3 * i + 2];
+        let v = 0;
+        for (const im of images) {
+          v += im.sign * panelPotential(P, j, im.flip[0] * x + im.shift[0], im.flip[1] * y + im.shift[1], im.flip[2] * z + im.shift[2]);
+        }
+        return scale * v;
+      };
   return {
     row(i, cols, c0, n, out) {
       for (let k = 0; k < n; k++) out[k] = at(i, cols[c0 + k]);
@@ -34,7 +40,12 @@ export function panelEntrySource(P: Panels, points: Float64Array, scale: number,
   };
 }
 
-/** Every panel's vertex coordinates (9 per panel), for cluster boxes that cover whole panels. */
-export function panelExtent(P: Panels): { coords: Float64Array; stride: number } {
-  return { coords: P.vertices, stride: 9 };
+/** What each unknown's cluster box must cover: its panel's vertices and its collocation point. */
+export function panelExtent(P: Panels, points: Float64Array = P.centroid): { coords: Float64Array; stride: number } {
+  const coords = new Float64Array(12 * P.count);
+  for (let j = 0; j < P.count; j++) {
+    coords.set(P.vertices.subarray(9 * j, 9 * j + 9), 12 * j);
+    coords.set(points.subarray(3 * j, 3 * j + 3), 12 * j + 9);
+  }
+  return { coords, stride: 12 };
 }

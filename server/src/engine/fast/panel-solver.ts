@@ -4,7 +4,7 @@ import { preparePanels, type Panels } from '../kernels/triangle';
 import { buildFastSolver, type FastSolver, type FastSolverOptions } from './fast-solver';
 import { type BlockTask, type DenseBlock, type LowRankBlock } from './hmatrix';
 import { runAssemble, unpackBlocks, type AssembleJob, type PackedBlocks } from './jobs';
-import { panelEntrySource, panelExtent, type MirrorPlane } from './panel-entries';
+import { panelEntrySource, panelExtent, type ImageMap } from './panel-entries';
 import { fastThreads, runParallel, shared } from './pool';
 
 export interface PanelSystem {
@@ -13,9 +13,10 @@ export interface PanelSystem {
   triangles: Uint32Array;
   /** Collocation points, 3 per panel (the centroids). */
   points: Float64Array;
-  /** Factor on ∫1/R: 1/(4π ε) for densities in C/m². */
+  /** Factor on ∫1/R: 1/(4π ε) for densities in C/m², 1/(4π) for the 3D system's scaled densities. */
   scale: number;
-  mirror: MirrorPlane | null;
+  /** Images of grounded planes, the identity included (default: the identity alone). */
+  images?: readonly ImageMap[];
 }
 
 export interface PanelSolverOptions extends FastSolverOptions {
@@ -26,10 +27,10 @@ export interface PanelSolverOptions extends FastSolverOptions {
 /** Builds the H-matrix solver for a panel system, filling blocks on several threads when it can. */
 export function buildPanelSolver(sys: PanelSystem, options: Partial<PanelSolverOptions> = {}, panels?: Panels): FastSolver {
   const P = panels ?? preparePanels(sys);
-  const src = panelEntrySource(P, sys.points, sys.scale, sys.mirror);
+  const src = panelEntrySource(P, sys.points, sys.scale, sys.images);
   const threads = fastThreads(options.threads);
   const filler = threads > 1 ? (tasks: BlockTask[], order: Int32Array, eps: number) => fillParallel(sys, P, tasks, order, eps, threads) : undefined;
-  return buildFastSolver(src, sys.points, panelExtent(P), options, filler);
+  return buildFastSolver(src, sys.points, panelExtent(P, sys.points), options, filler);
 }
 
 function fillParallel(sys: PanelSystem, P: Panels, tasks: BlockTask[], order: Int32Array, eps: number, threads: number): (DenseBlock | LowRankBlock)[] {
@@ -43,7 +44,7 @@ function fillParallel(sys: PanelSystem, P: Panels, tasks: BlockTask[], order: In
     triangles: shared(sys.triangles),
     points: shared(sys.points),
     scale: sys.scale,
-    mirror: sys.mirror,
+    images: (sys.images ?? undefined)?.map((im) => ({ sign: im.sign, flip: [...im.flip], shift: [...im.shift] })),
     order: shared(order),
     tasks: shared(flat),
     eps,

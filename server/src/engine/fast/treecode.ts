@@ -14,7 +14,7 @@
 // with the exact panel integrals near them (server/src/engine/kernels/triangle.ts). The truncation
 // error is about (ρ/r)³ relative to the cluster's own contribution: θ = 0.5 gives about 1e-3 on a
 // slice, θ = 0.3 about 1e-4 (measured in tests/fast/treecode.test.ts).
-import { panelGradient, panelPotential, type Panels } from '../kernels/triangle';
+import { panelPotentialAndGradient, type Panels } from '../kernels/triangle';
 import { buildClusterTree, type ClusterTree } from './cluster-tree';
 
 export interface PanelTree {
@@ -132,7 +132,7 @@ export function evaluateTree(T: PanelTree, points: Float64Array, from: number, t
   const { P, tree, center, radius, moments, sigma, panelRadiusSq, panelMoments } = T;
   const C = P.centroid;
   const stack = new Int32Array(256); // depth-first: at most two entries per level of a balanced tree
-  const g = new Float64Array(3);
+  const g = new Float64Array(4);
   const theta2 = theta * theta;
   for (let i = from; i < to; i++) {
     const x = points[3 * i], y = points[3 * i + 1], z = points[3 * i + 2];
@@ -186,11 +186,11 @@ export function evaluateTree(T: PanelTree, points: Float64Array, from: number, t
             ez += a * rz + 3 * Mrz * inv5;
             continue;
           }
-          phi += s * panelPotential(P, j, x, y, z);
-          panelGradient(P, j, x, y, z, g, 0);
-          ex += s * g[0];
-          ey += s * g[1];
-          ez += s * g[2];
+          panelPotentialAndGradient(P, j, x, y, z, g, 0);
+          phi += s * g[0];
+          ex += s * g[1];
+          ey += s * g[2];
+          ez += s * g[3];
         }
       }
     }
@@ -203,18 +203,18 @@ export function evaluateTree(T: PanelTree, points: Float64Array, from: number, t
 
 /** The clear reference: the same sums over every panel, one by one. O(N·M). */
 export function evaluateDirect(P: Panels, sigma: Float64Array, points: Float64Array, out: Float64Array): void {
-  const g = new Float64Array(3);
+  const g = new Float64Array(4);
   for (let i = 0; i < points.length / 3; i++) {
     const x = points[3 * i], y = points[3 * i + 1], z = points[3 * i + 2];
     let phi = 0, ex = 0, ey = 0, ez = 0;
     for (let j = 0; j < P.count; j++) {
       const s = sigma[j];
       if (s === 0) continue;
-      phi += s * panelPotential(P, j, x, y, z);
-      panelGradient(P, j, x, y, z, g, 0);
-      ex += s * g[0];
-      ey += s * g[1];
-      ez += s * g[2];
+      panelPotentialAndGradient(P, j, x, y, z, g, 0);
+      phi += s * g[0];
+      ex += s * g[1];
+      ey += s * g[2];
+      ez += s * g[3];
     }
     out[4 * i] += phi;
     out[4 * i + 1] += ex;
