@@ -1,0 +1,190 @@
+// Latency of the language server, measured through the real server process over stdio
+// (`npm run bench -- lsp`, bundled to dist/bench-lsp.js). For each sample in samples/:
+// - keystroke → diagnostics: an edit, until its version's diagnostics arrive;
+// - keystroke → new picture: an edit of a length (a geometry change), until the full result of its
+//   version arrives, raw and with the debounce (setting solveDelay) subtracted; the coarse picture too;
+// - drive-only edit → new picture: one potential changed, until the full result (the engine reuses
+//   the factorization), raw and without the debounce.
+// Targets on this machine: diagnostics p95 < 50 ms; a new picture p95 < 300 ms for scenes up to
+// 2,000 panels; a drive-only edit < 50 ms. Prints a table.
+import { readdirSync, readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { analyzeText } from '../grammar/index';
+import type { Expr, Statement } from '../grammar/ast';
+import type { Range } from '../grammar/scene';
+import { LspClient } from '../tests/lsp/lsp-client';
+
+const root = join(__dirname, '..');
+const DEBOUNCE = 175;
+const DIAGNOSTIC_EDITS = 30;
+const PICTURE_EDITS = 10;
+/** Stop measuring pictures of a sample after this long (big scenes). */
+const BUDGET_MS = 60_000;
+
+function quantile(xs: number[], q: number): number {
+  if (xs.length === 0) return NaN;
+  const s = [...xs].sort((a, b) => a - b);
+  const i = Math.min(s.length - 1, Math.max(0, Math.ceil(q * s.length) - 1));
+  return s[i];
+}
+const ms = (x: number) => (Number.isFinite(x) ? x.toFixed(x < 10 ? 1 : 0) : '—');
+const pair = (xs: number[]) => (xs.length ? `${ms(quantile(xs, 0.5))} / ${ms(quantile(xs, 0.95))}` : '—');
+
+/** The number literal an expression comes down to (through units, unary minus and let names). */
+function numberIn(e: Expr | null, statements: Statement[], depth = 0): Extract<Expr, { kind: 'number' }> | null {
+  if (!e || depth > 4) return null;
+  if (e.kind === 'number') return e.value !== 0 ? e : null;
+  if (e.kind === 'unit') return numberIn(e.operand, statements, depth);
+  if (e.kind === 'unary') return numberIn(e.operand, statements, depth);
+  if (e.kind === 'name') {
+    const definition = statements.find((s) => s.type === 'let' && s.name?.text === e.name);
+    return definition ? numberIn(definition.value, statements, depth + 1) : null;
+  }
+  return null;
+}
+
+/** The number to change for a geometry edit (a radius or a let of a length) or a drive-only edit (a potential). */
+function target(text: string, kind: 'geometry' | 'drive'): { range: Range; value: number } | null {
+  const { ast, symbols } = analyzeText(text);
+  const statements = ast.statements;
+  if (kind === 'geometry') {
+    const used = symbols.entries.find((s) => s.kind === 'let' && s.references.length > 0 && s.value && !Array.isArray(s.value.si) && s.value.dim[0] === 1 && s.value.dim[1] === 0 && s.value.dim[2] === 0);
+    const n = used ? numberIn(statements.find((s) => s.type === 'let' && s.name?.text === used.name)?.value ?? null, statements) : null;
+    if (n) return { range: n.range, value: n.value };
+    for (const s of statements) {
+      if (s.type !== 'electrode') continue;
+      const radius = s.attributes.find((a) => a.name.text === 'radius' || a.name.text === 'minor');
+      const r = numberIn((radius?.value as Expr | null) ?? null, statements);
+      if (r) return { range: r.range, value: r.value };
+    }
+    return null;
+  }
+  for (const s of statements) {
+    if (s.type !== 'electrode') continue;
+    const p = s.attributes.find((a) => a.name.text === 'potential');
+    const n = numberIn((p?.value as Expr | null) ?? null, statements);
+    if (n) return { range: n.range, value: n.value };
+  }
+  return null;
+}
+
+/** Applies a one-range edit to the text. */
+function applyEdit(text: string, range: Range, newText: string): string {
+  const lines = text.split('\n');
+  const offset = (p: Range['start']) => lines.slice(0, p.line).reduce((a, l) => a + l.length + 1, 0) + p.character;
+  return text.slice(0, offset(range.start)) + newText + text.slice(offset(range.end));
+}
+
+interface Row {
+  sample: string;
+  panels: number | string;
+  diagnostics: number[];
+  coarse: number[];
+  picture: number[];
+  drive: number[];
+  driveSolve: number[];
+  note: string;
+}
+
+async function benchSample(client: LspClient, file: string): Promise<Row> {
+  const uri = `file://${join(root, 'samples', file)}`;
+  let text = readFileSync(join(root, 'samples', file), 'utf8') + '\n# bench\n';
+  let version = 1;
+  const row: Row = { sample: file.replace(/\.vscape$/, ''), panels: '—', diagnostics: [], coarse: [], picture: [], drive: [], driveSolve: [], note: '' };
+  const since = client.received.length;
+  await client.open(uri, text, version);
+  const opened = await client.diagnostics(uri, version, since);
+  const hasErrors = opened.params.diagnostics.some((d: { severity: number }) => d.severity === 1);
+
+  // Keystrokes: type characters into the trailing comment, one edit per keystroke.
+  const lastLine = text.split('\n').length - 2;
+  for (let k = 0; k < DIAGNOSTIC_EDITS; k++) {
+    const at = { line: lastLine, character: '# bench'.length + k };
+    const mark = client.received.length;
+    const start = performance.now();
+    version++;
+    await client.edit(uri, version, { start: at, end: at }, 'x');
+    text = applyEdit(text, { start: at, end: at }, 'x');
+    row.diagnostics.push((await client.diagnostics(uri, version, mark)).at - start);
+  }
+  if (hasErrors) {
+    row.note = 'has errors: not solved';
+    await client.close(uri);
+    return row;
+  }
+  try {
+    const first = await client.result(uri, version, 'full', since, BUDGET_MS * 2);
+    row.panels = (first.params.result as { stats?: { panels?: number } }).stats?.panels ?? '—';
+  } catch {
+    row.note = 'first solve over the time budget';
+    await client.close(uri);
+    return row;
+  }
+
+  const started = performance.now();
+  for (const kind of ['geometry', 'drive'] as const) {
+    for (let k = 0; k < PICTURE_EDITS && performance.now() - started < BUDGET_MS; k++) {
+      const t = target(text, kind);
+      if (!t) {
+        row.note += `${row.note ? '; ' : ''}no ${kind} edit found`;
+        break;
+      }
+      // Alternate the value by ±1 % so the geometry keeps moving.
+      const value = Number((t.value * (k % 2 === 0 ? 1.01 : 1 / 1.01)).toPrecision(8));
+      const mark = client.received.length;
+      const start = performance.now();
+      version++;
+      await client.edit(uri, version, t.range, String(value));
+      text = applyEdit(text, t.range, String(value));
+      const coarse = await client.result(uri, version, 'coarse', mark, BUDGET_MS * 2);
+      const full = await client.result(uri, version, 'full', mark, BUDGET_MS * 2);
+      if (kind === 'geometry') {
+        row.coarse.push(coarse.at - start);
+        row.picture.push(full.at - start);
+      } else {
+        row.drive.push(full.at - start);
+        row.driveSolve.push(full.params.solveMs);
+      }
+    }
+  }
+  await client.close(uri);
+  return row;
+}
+
+async function main() {
+  const files = readdirSync(join(root, 'samples')).filter((f) => f.endsWith('.vscape')).sort();
+  const client = await LspClient.start(join(root, 'dist/server.js'), { solveDelay: DEBOUNCE });
+  const rows: Row[] = [];
+  for (const f of files) {
+    const row = await benchSample(client, f);
+    rows.push(row);
+    process.stdout.write(`  ${row.sample} done\n`);
+  }
+  await client.stop();
+
+  const minus = (xs: number[]) => xs.map((x) => x - DEBOUNCE);
+  const header = ['sample', 'panels', 'keystroke→diagnostics', 'edit→coarse picture', 'edit→new picture (raw)', 'new picture − debounce', 'drive edit − debounce', 'drive solve in worker', 'note'];
+  const table = rows.map((r) => [
+    r.sample,
+    String(r.panels),
+    pair(r.diagnostics),
+    pair(r.coarse),
+    pair(r.picture),
+    pair(minus(r.picture)),
+    pair(minus(r.drive)),
+    pair(r.driveSolve),
+    r.note,
+  ]);
+  const widths = header.map((h, i) => Math.max(h.length, ...table.map((t) => t[i].length)));
+  const line = (cells: string[]) => cells.map((c, i) => c.padEnd(widths[i])).join(' | ');
+  console.log(`\nLanguage-server latency over stdio, milliseconds, median / p95 (debounce ${DEBOUNCE} ms; ${DIAGNOSTIC_EDITS} keystrokes, up to ${PICTURE_EDITS} edits each)`);
+  console.log(line(header));
+  console.log(widths.map((w) => '-'.repeat(w)).join('-|-'));
+  for (const t of table) console.log(line(t));
+  console.log('\nTargets: diagnostics p95 < 50 ms; new picture p95 < 300 ms (scenes up to 2,000 panels); drive-only edit < 50 ms.');
+}
+
+main().catch((error) => {
+  console.error(error);
+  process.exit(1);
+});
