@@ -3,7 +3,8 @@
 import { describe, expect, it } from 'vitest';
 import { asinhLevels, planLevels } from '../../server/src/cli/contour-levels';
 import { niceStep, renderSvg } from '../../server/src/cli/svg';
-import { SPHERE_VOLTS, sphereResult, sphereSlice } from './fixtures';
+import { groundTraces, maskOutlines, sceneOutlines, thinOutlines } from '../../server/src/cli/slice-outlines';
+import { SPHERE_VOLTS, sphereResult, sphereScene, sphereSlice } from './fixtures';
 import { parseXml } from './xml';
 
 describe('renderSvg', () => {
@@ -89,5 +90,49 @@ describe('contour levels', () => {
     expect(niceStep(0.8, 5)).toBeCloseTo(0.2, 12);
     expect(niceStep(0.44, 5)).toBeCloseTo(0.1, 12);
     expect(niceStep(3, 6)).toBeCloseTo(0.5, 12);
+  });
+});
+
+describe('outlines cut from the scene when the solve gives none', () => {
+  it('cuts a sphere of radius a at distance d from its centre in a circle of radius √(a² − d²)', () => {
+    const scene = sphereScene();
+    const slice = { ...sphereSlice(), outlines: [], at: 0.06 }; // 60 mm off the centre of a 100 mm sphere: an 80 mm circle
+    const [outline] = sceneOutlines(scene, slice);
+    expect(outline.closed).toBe(true);
+    const p = outline.paths[0];
+    for (let k = 0; k < p.length; k += 2) expect(Math.hypot(p[k], p[k + 1])).toBeCloseTo(0.08, 12);
+  });
+
+  it('draws a hollow shell as an open stroke, so what is inside shows', () => {
+    const scene = sphereScene();
+    scene.electrodes[0].shape = { kind: 'box', center: [0, 0, 0], size: [0.2, 0.2, 0.2], hollow: true };
+    const [outline] = sceneOutlines(scene, { ...sphereSlice(), outlines: [] });
+    expect(outline.closed).toBe(false);
+    expect(outline.paths[0]).toEqual([-0.1, -0.1, 0.1, -0.1, 0.1, 0.1, -0.1, 0.1, -0.1, -0.1]);
+  });
+
+  it('cuts a disc across the slice in a chord of half-length √(R² − δ²)', () => {
+    const scene = sphereScene();
+    // A disc of radius 50 mm in the plane z = 0; the xz slice at y = 30 mm meets it in a chord of half-length 40 mm.
+    scene.electrodes[0].shape = { kind: 'disc', center: [0, 0, 0], normal: [0, 0, 1], radius: 0.05 };
+    const [outline] = thinOutlines(scene, { ...sphereSlice(), outlines: [], at: 0.03 });
+    expect(outline.closed).toBe(false);
+    const [u0, v0, u1, v1] = outline.paths[0];
+    expect(Math.hypot(u1 - u0, v1 - v0) / 2).toBeCloseTo(0.04, 12);
+    expect(v0).toBeCloseTo(0, 12);
+  });
+
+  it('traces a solid from the inside grid when no exact cut is known', () => {
+    const traced = maskOutlines(sphereSlice());
+    expect(traced).toHaveLength(1);
+    const p = traced[0].paths[0];
+    // The traced ring follows the 100 mm sphere to within a grid cell (10 mm).
+    for (let k = 0; k < p.length; k += 2) expect(Math.abs(Math.hypot(p[k], p[k + 1]) - 0.1)).toBeLessThan(0.01);
+  });
+
+  it('puts a ground plane across the slice', () => {
+    const scene = sphereScene();
+    scene.groundPlanes = [{ axis: 'z', at: -0.25, range: scene.limit!.range }];
+    expect(groundTraces(scene, sphereSlice())).toEqual([[-0.4, -0.25, 0.4, -0.25]]);
   });
 });

@@ -49,7 +49,10 @@ export function planLevels(result: Result, count = 14): LevelPlan {
   if (!(extent > 0)) return { lo: 0, hi: 0, phi0: 1, levels: [] };
   // φ0 a fifth of the largest potential: mild compression near the conductors, more room far out.
   const phi0 = extent / 5;
-  return { lo, hi, phi0, levels: asinhLevels(lo, hi, phi0, count) };
+  // A level at a conductor's own potential only retraces its surface (and frays along it on a grid): leave it out.
+  const potentials = result.electrodes.map((e) => e.potential).filter(Number.isFinite);
+  const levels = asinhLevels(lo, hi, phi0, count).filter((v) => potentials.every((p) => Math.abs(v - p) > 1e-3 * extent));
+  return { lo, hi, phi0, levels };
 }
 
 /** `count` intervals evenly spaced in asinh(φ/φ0) between lo and hi; returns the inner boundaries, rounded to 2 significant digits. */

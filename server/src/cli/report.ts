@@ -181,12 +181,14 @@ function probe(p: ProbeResult): string {
   }
   const first = p.points[0];
   const last = p.points[p.points.length - 1];
+  // Extremes over the finite samples (a sample on a conductor's surface may have no value).
   const by = (key: 'potential' | 'fieldMagnitude') => {
     let lo = p.points[0];
     let hi = p.points[0];
     for (const q of p.points) {
-      if (q[key] < lo[key]) lo = q;
-      if (q[key] > hi[key]) hi = q;
+      if (!Number.isFinite(q[key])) continue;
+      if (!Number.isFinite(lo[key]) || q[key] < lo[key]) lo = q;
+      if (!Number.isFinite(hi[key]) || q[key] > hi[key]) hi = q;
     }
     return { lo, hi };
   };

@@ -7,6 +7,7 @@ import { parseArgs, USAGE } from './args';
 import { countErrors, formatDiagnostic, sortDiagnostics } from './diagnostics';
 import { failureJson, resultJson, stringify } from './json';
 import { renderReport, SAFETY_CAUTION } from './report';
+import { completeSlices } from './slice-outlines';
 import { renderSvg } from './svg';
 import { formatQuantity } from '../format/quantity';
 
@@ -14,8 +15,8 @@ export const EXIT_CLEAN = 0;
 export const EXIT_ERRORS = 1;
 export const EXIT_FAILED = 2;
 
-/** Code of the diagnostic the CLI adds when a `limit` is broken and the solve did not report it itself. */
-export const LIMIT_BROKEN_CODE = 'VS601';
+/** The solver's code for a broken `limit` (grammar/diagnostics.ts); the CLI adds one only if the solve did not. */
+export const LIMIT_BROKEN_CODE = 'VS401';
 
 export interface Io {
   out(text: string): void;
@@ -241,7 +242,10 @@ async function solve(cmd: SolveCommand, io: Io, stages: Stages): Promise<number>
   else io.out(renderReport({ file: cmd.file, scene, result, diagnostics }));
 
   const outputs: [string, () => string][] = [];
-  if (cmd.svg) outputs.push([cmd.svg, () => renderSvg({ title: scene.title ?? cmd.file, subtitle: subtitle(scene), result })]);
+  if (cmd.svg) {
+    const drawn = completeSlices(scene, result);
+    outputs.push([cmd.svg, () => renderSvg({ title: scene.title ?? cmd.file, subtitle: subtitle(scene), result: drawn })]);
+  }
   if (cmd.html && stages.renderPreviewHtml) {
     const render = stages.renderPreviewHtml;
     outputs.push([cmd.html, () => render({ file: cmd.file, scene, result, diagnostics })]);

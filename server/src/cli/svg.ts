@@ -243,8 +243,9 @@ function electrodeLabels(result: Result, f: Frame): string[] {
       }
     }
     if (!Number.isFinite(minU)) continue;
-    let [x, y] = toPx(f, (minU + maxU) / 2, (minV + maxV) / 2);
-    if (!o.closed) y -= 7;
+    // Solids are labelled at their centre; sheets and hollow shells just above their top.
+    let [x, y] = toPx(f, (minU + maxU) / 2, o.closed ? (minV + maxV) / 2 : maxV);
+    if (!o.closed) y -= 9;
     x = Math.min(f.left + f.width - 20, Math.max(f.left + 20, x));
     y = Math.min(f.top + f.height - 6, Math.max(f.top + 12, y));
     out.push(`<text class="electrode-name" x="${r1(x)}" y="${r1(y + 4)}" text-anchor="middle">${xml(name)}</text>`);
