@@ -4,6 +4,7 @@ import * as vscode from 'vscode';
 import { LanguageClient, LanguageClientOptions, ServerOptions, TransportKind } from 'vscode-languageclient/node';
 import {
   LatestResultRequest,
+  PreviewDrawnMessage,
   ResultNotification,
   ResultParams,
   SolveStatusNotification,
@@ -16,7 +17,13 @@ let client: LanguageClient | undefined;
 
 const isScene = (d: vscode.TextDocument | undefined): d is vscode.TextDocument => d?.languageId === 'vscape';
 
-export async function activate(context: vscode.ExtensionContext): Promise<void> {
+/** What activate returns: a small window for the extension's own tests. */
+export interface VoltscapeApi {
+  /** The open preview's document and what its page last reported drawing, if a preview is open. */
+  preview(): { uri: string; drawn: PreviewDrawnMessage | undefined } | undefined;
+}
+
+export async function activate(context: vscode.ExtensionContext): Promise<VoltscapeApi> {
   const serverModule = context.asAbsolutePath('dist/server.js');
   const serverOptions: ServerOptions = {
     run: { module: serverModule, transport: TransportKind.ipc },
@@ -92,6 +99,12 @@ export async function activate(context: vscode.ExtensionContext): Promise<void> 
   );
 
   await client.start();
+  return {
+    preview: () => {
+      const p = PreviewPanel.current;
+      return p && { uri: p.documentUri, drawn: p.lastDrawn };
+    },
+  };
 }
 
 export async function deactivate(): Promise<void> {

@@ -4,6 +4,7 @@
 import * as vscode from 'vscode';
 import type {
   ExtensionToPreviewMessage,
+  PreviewDrawnMessage,
   PreviewToExtensionMessage,
   ResultParams,
   SolveStatusParams,
@@ -24,6 +25,8 @@ function titleOf(uri: string): string {
 
 export class PreviewPanel {
   static current: PreviewPanel | undefined;
+  /** What the page last reported drawing (for tests and diagnostics of the preview itself). */
+  lastDrawn: PreviewDrawnMessage | undefined;
   private uri: string;
   private readonly disposables: vscode.Disposable[] = [];
 
@@ -103,7 +106,7 @@ export class PreviewPanel {
   }
 
   onStatus(p: SolveStatusParams): void {
-    if (p.uri === this.uri) this.post({ type: 'status', state: p.state, message: p.message });
+    if (p.uri === this.uri) this.post({ type: 'status', state: p.state, version: p.version, message: p.message });
   }
 
   private showMessage(p: ResultParams): ExtensionToPreviewMessage {
@@ -127,6 +130,7 @@ export class PreviewPanel {
     if (m.type === 'ready') void this.sendLatest();
     else if (m.type === 'selectElectrode') void this.selectElectrode(m.index, m.name, m.range);
     else if (m.type === 'export') void this.save(m.format, m.data, m.suggestedName);
+    else if (m.type === 'drawn') this.lastDrawn = m;
   }
 
   /** Selects the electrode's statement in the scene's editor (opening it beside if needed). */

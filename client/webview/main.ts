@@ -26,6 +26,7 @@ interface Shown {
   title: string;
   stale: boolean;
   level: string;
+  version: number;
 }
 let shown: Shown | null = null;
 let picture: Picture | null = null;
@@ -72,7 +73,7 @@ function setStatus(): void {
   if (problem) statusEl.textContent = problem;
   else if (shown?.stale) statusEl.textContent = 'Out of date: the scene has errors; showing the last good result';
   else if (solving) statusEl.textContent = shown ? 'Updating… (showing the previous result)' : 'Solving…';
-  else if (shown) statusEl.textContent = shown.level === 'coarse' ? 'Coarse result; refining…' : '';
+  else if (shown) statusEl.textContent = shown.level === 'coarse' ? 'Coarse result shown; refining…' : '';
   else statusEl.textContent = '';
 }
 
@@ -229,7 +230,7 @@ pngButton.addEventListener('click', () => {
 });
 
 // ---- messages ----
-function show(m: Pick<PreviewShowMessage, 'title' | 'stale' | 'level' | 'result'>): void {
+function show(m: Pick<PreviewShowMessage, 'title' | 'stale' | 'level' | 'result' | 'version'>): void {
   let result: Result;
   try {
     result = decodeResult(m.result);
@@ -238,10 +239,17 @@ function show(m: Pick<PreviewShowMessage, 'title' | 'stale' | 'level' | 'result'
     setStatus();
     return;
   }
-  shown = { result, title: m.title, stale: m.stale, level: m.level };
+  shown = { result, title: m.title, stale: m.stale, level: m.level, version: m.version };
   solving = false;
   problem = null;
   render();
+  host.post({
+    type: 'drawn',
+    version: m.version,
+    levels: picture?.levels ?? 0,
+    contours: picture ? picture.svg.querySelectorAll('path.contour').length : 0,
+    stale: document.body.dataset.stale === 'true',
+  });
 }
 
 const waitingStates: SolveState[] = ['queued', 'solving'];
@@ -250,7 +258,9 @@ function handle(message: ExtensionToPreviewMessage): void {
   if (!message || typeof message !== 'object') return;
   if (message.type === 'show') show(message);
   else if (message.type === 'status') {
-    solving = waitingStates.includes(message.state);
+    // Solving the version already shown (the full level after a coarse one) only refines the picture.
+    const refining = waitingStates.includes(message.state) && !!shown && message.version === shown.version;
+    solving = waitingStates.includes(message.state) && !refining;
     if (message.state === 'failed') problem = `The solve failed${message.message ? `: ${message.message}` : ''}; showing the last good result.`;
     else if (message.state === 'limited') problem = 'The scene is over a limit and was not solved; showing the last good result.';
     else if (message.state === 'stale') problem = 'Out of date: the scene has errors; showing the last good result.';
@@ -270,7 +280,7 @@ window.addEventListener('message', (ev: MessageEvent) => handle(ev.data as Exten
 const embedded = document.getElementById('voltscape-data');
 if (embedded?.textContent) {
   const data = JSON.parse(embedded.textContent) as { title: string; result: unknown };
-  show({ title: data.title, stale: false, level: 'full', result: data.result });
+  show({ title: data.title, stale: false, level: 'full', result: data.result, version: 0 });
 } else {
   host.post({ type: 'ready' });
 }

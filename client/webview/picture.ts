@@ -325,6 +325,8 @@ export function drawPicture(result: Result, sliceIndex: number, options: Picture
     svgEl('text', {
       x: px(tx), y: px(ty), 'text-anchor': anchorEnd ? 'end' : 'start', 'font-size': 11, 'font-weight': 600,
       fill: palette.peak, stroke: palette.background, 'stroke-width': 3, 'paint-order': 'stroke',
+      // The label may lie over another electrode: let clicks pass through to what is under it.
+      'pointer-events': 'none',
     }, g, label);
     if (off) notes.push(`Peak field on ${e.name} (${value}) is ${formatLength(Math.abs(q.off), 3)} off this slice; the marker shows where it projects.`);
   });

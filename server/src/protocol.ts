@@ -123,6 +123,8 @@ export interface PreviewShowMessage {
 export interface PreviewStatusMessage {
   type: 'status';
   state: SolveState;
+  /** The document version the state is about (a newer solve of the version shown is only a refinement). */
+  version?: number;
   message?: string;
 }
 
@@ -158,5 +160,19 @@ export interface PreviewExportMessage {
   suggestedName: string;
 }
 
-export type PreviewToExtensionMessage = PreviewReadyMessage | PreviewSelectElectrodeMessage | PreviewExportMessage;
+/** webview → extension: a picture was drawn (what it shows; used by the extension's tests and status). */
+export interface PreviewDrawnMessage {
+  type: 'drawn';
+  version: number;
+  /** Contour levels and contour-line paths drawn, and whether the stale mark is on. */
+  levels: number;
+  contours: number;
+  stale: boolean;
+}
+
+export type PreviewToExtensionMessage =
+  | PreviewReadyMessage
+  | PreviewSelectElectrodeMessage
+  | PreviewExportMessage
+  | PreviewDrawnMessage;
 
