@@ -2,7 +2,7 @@
 import { describe, expect, it } from 'vitest';
 import { EPSILON_0 } from '../../grammar/scene';
 import { solveScene } from '../../server/src/engine/index';
-import { sliceGrid } from '../../server/src/engine/evaluate';
+import { sliceGrid, TREECODE_ABOVE } from '../../server/src/engine/evaluate';
 import { electrode, R0, scene3d, sphere } from './scenes';
 
 const small = { kind: 'size', size: 0.1 } as const;
@@ -38,6 +38,34 @@ describe('slices', () => {
       }
     }
     expect(inside).toBeGreaterThan(0);
+  });
+
+  it('a large grid (treecode for the panels) agrees with precise probes at the same points, ground plane and free charge included', () => {
+    const s = scene3d({
+      mesh: small,
+      electrodes: [electrode('s', sphere([0, 0, 0], 0.3), { kind: 'potential', value: 1000 })],
+      ground: [{ axis: 'z', at: -0.5 }],
+      charges: [{ kind: 'line', name: 'beam', from: [-1, 0.05, 0.5], to: [1, 0.05, 0.5], density: 1e-9, range: R0 }],
+    });
+    s.slices = [{ plane: 'xz', at: 0, from: [-1, -0.5], to: [1, 0.5], cells: 200, range: R0 }];
+    const r0 = solveScene(s, { convergence: false })!;
+    const g = r0.slices[0];
+    expect(g.nu * g.nv * r0.stats.panels).toBeGreaterThan(TREECODE_ABOVE);
+    expect(g.outlines.length).toBe(1);
+    expect(g.groundLines).toEqual([[-1, -0.5, 1, -0.5]]);
+    const cells = [5 * g.nu + 7, 60 * g.nu + 150, 90 * g.nu + 30, 30 * g.nu + 160];
+    s.probes = cells.map((idx, k) => ({
+      kind: 'point' as const,
+      name: `p${k}`,
+      at: [g.u0 + ((idx % g.nu) + 0.5) * g.du, 0, g.v0 + (Math.floor(idx / g.nu) + 0.5) * g.dv] as [number, number, number],
+      range: R0,
+    }));
+    const r = solveScene(s, { convergence: false })!;
+    cells.forEach((idx, k) => {
+      const p = r.probes[k].points[0];
+      expect(Math.abs(g.potential[idx] - p.potential)).toBeLessThan(1e-3 * 1000);
+      expect(Math.abs(g.fieldMagnitude[idx] / p.fieldMagnitude - 1)).toBeLessThan(2e-3);
+    });
   });
 
   it('a grid over the cell limit is coarsened, with a warning', () => {

@@ -289,7 +289,7 @@ export function solve3d(scene: Scene3d, o: Solve3dOptions): Result | null {
 
   t = performance.now();
   const W = energy(scene, fine, images);
-  const probes = evaluateProbes(scene, fine.state);
+  const probes = evaluateProbes(scene, fine.state, fine.potentials);
   timings.probes = performance.now() - t;
   t = performance.now();
   const slices = evaluateSlices(scene, fine.state, fine.potentials, o.maxGridCells, diagnostics, o.isCancelled);
