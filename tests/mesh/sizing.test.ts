@@ -11,7 +11,8 @@ import {
   resolvePanelSize,
 } from '../../server/src/engine/mesh/index';
 import type { Mesh } from '../../server/src/engine/mesh/types';
-import { scene3d, unpairedEdges } from './helpers';
+import { signedDistance3d } from '../../grammar/geometry';
+import { enclosedVolume, inconsistentEdges, scene3d, unpairedEdges, worstQuality } from './helpers';
 
 const sphere: Shape3d = { kind: 'sphere', center: [0, 0, 0], radius: 0.1, hollow: false };
 const cube: Shape3d = { kind: 'box', center: [0, 0, 0], size: [0.2, 0.2, 0.2], hollow: false };
@@ -145,5 +146,33 @@ describe('robustness', () => {
   it('falls back to the normal size for a non-positive or NaN size', () => {
     const m = meshScene(scene3d([sphere]), () => NaN);
     expect(m.area.length).toBe(count(sphere, 'normal'));
+  });
+});
+
+describe('local refinement of curved bodies (longest-edge bisection)', () => {
+  const near = (cx: number, cy: number, cz: number, fine: number, coarse: number) => (x: number, y: number, z: number) =>
+    Math.min(coarse, fine + 0.5 * Math.hypot(x - cx, y - cy, z - cz));
+  // The hot point lies on each surface (the sphere's and the torus's outer equator).
+  it.each([
+    { shape: { kind: 'sphere', center: [0, 0, 0], radius: 1, hollow: false }, hot: [1, 0, 0] },
+    { shape: { kind: 'torus', center: [0, 0, 0], axis: [0, 0, 1], major: 1, minor: 0.3, hollow: false }, hot: [1.3, 0, 0] },
+  ] as { shape: Shape3d; hot: [number, number, number] }[])('refines a $shape.kind only near the small target, keeping it closed, outward and on the surface', ({ shape, hot }) => {
+    const graded = meshScene(scene3d([shape]), near(...hot, 0.02, 0.3));
+    const uniformFine = meshScene(scene3d([shape]), () => 0.02);
+    const uniformCoarse = meshScene(scene3d([shape]), () => 0.3);
+    expect(unpairedEdges(graded)).toBe(0);
+    expect(inconsistentEdges(graded)).toBe(0);
+    expect(enclosedVolume(graded)).toBeGreaterThan(0);
+    expect(worstQuality(graded)).toBeGreaterThan(0.2);
+    expect(graded.area.length).toBeLessThan(uniformFine.area.length / 3);
+    expect(graded.area.length).toBeGreaterThan(uniformCoarse.area.length);
+    const dist = (p: number) => Math.hypot(graded.centroid[3 * p] - hot[0], graded.centroid[3 * p + 1] - hot[1], graded.centroid[3 * p + 2] - hot[2]);
+    // Target within 0.35 of the hot point: at most 0.02 + 0.5·0.35 ≈ 0.2 (≤ 0.45 of the rest, in area ≤ 0.2).
+    const close = meanArea(graded, (p) => dist(p) < 0.35);
+    const far = meanArea(graded, (p) => dist(p) > 1.5);
+    expect(close).toBeLessThan(far / 5);
+    for (let i = 0; i < graded.vertices.length / 3; i++) {
+      expect(Math.abs(signedDistance3d(shape, [graded.vertices[3 * i], graded.vertices[3 * i + 1], graded.vertices[3 * i + 2]]))).toBeLessThan(1e-12);
+    }
   });
 });

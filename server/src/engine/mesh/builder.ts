@@ -30,6 +30,20 @@ export class MeshBuilder {
     this.thinFlag.push(thin ? 1 : 0);
   }
 
+  /** The vertices and triangles so far, for refinement (a builder used for one body). */
+  patchwork(): { xyz: number[]; triangles: [number, number, number][] } {
+    const triangles: [number, number, number][] = [];
+    for (let k = 0; k < this.tri.length; k += 3) triangles.push([this.tri[k], this.tri[k + 1], this.tri[k + 2]]);
+    return { xyz: [...this.xyz], triangles };
+  }
+
+  /** Adds a whole triangulated body (vertex order as given, counter-clockwise seen from outside). */
+  addPatchwork(pw: { xyz: number[]; triangles: [number, number, number][] }, electrode: number, thin: boolean): void {
+    const base = this.vertexCount;
+    for (let k = 0; k < pw.xyz.length; k += 3) this.vertex(pw.xyz[k], pw.xyz[k + 1], pw.xyz[k + 2]);
+    for (const t of pw.triangles) this.triangle(base + t[0], base + t[1], base + t[2], electrode, thin);
+  }
+
   /** Packs everything into a Mesh: centroids, unit normals (from the vertex order) and areas. */
   build(): Mesh {
     const n = this.owner.length;

@@ -24,6 +24,12 @@ export const DEFAULT_OPTIONS: MeshOptions = { relative: Infinity, minSegments: 1
  * is h/4, 0.375h, 0.56h, 0.84h, h: about two extra panels at each graded end.
  */
 export const EDGE_RATIO = 0.25;
+/**
+ * Ratio of the largest to the smallest target over a sphere or torus beyond which it is meshed at
+ * the larger size and refined locally (refine.ts: edges up to REFINE_FACTOR times the target there),
+ * rather than uniformly at the smallest.
+ */
+export const REFINE_FACTOR = 1.5;
 export const GROWTH = 1.5;
 
 /**

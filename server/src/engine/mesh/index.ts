@@ -8,7 +8,7 @@ import { addCylinder } from './cylinder';
 import { addDisc } from './disc';
 import { DEFAULT_OPTIONS, type MeshOptions, type SizeAt } from './grading';
 import { addPlate } from './plate';
-import { addSphere, sphereSize, sphereSubdivision } from './sphere';
+import { addSphereSized } from './sphere';
 import { addTorus } from './torus';
 import type { Mesh } from './types';
 
@@ -149,7 +149,7 @@ export function meshScene(scene: Scene3d, sizeAt: SizeAt, options: Partial<MeshO
     if (!meshable(s)) return;
     switch (s.kind) {
       case 'sphere':
-        addSphere(b, s.center, s.radius, sphereSubdivision(s.radius, sphereSize(s.center, s.radius, safe, opts)), index, s.hollow);
+        addSphereSized(b, s.center, s.radius, safe, opts, index, s.hollow);
         break;
       case 'box':
         addBox(b, boxLines(s.center, s.size, safe, opts), index, s.hollow);

@@ -2,7 +2,8 @@
 // and every vertex is pushed out onto the true sphere, giving 20·n² panels and 10·n² + 2 vertices.
 import type { Vec3 } from '../../../../grammar/scene';
 import { MeshBuilder } from './builder';
-import { type MeshOptions, type SizeAt, minSize } from './grading';
+import { type MeshOptions, REFINE_FACTOR, type SizeAt, minSize } from './grading';
+import { refineToSize } from './refine';
 import type { Mesh } from './types';
 
 // The regular icosahedron: vertices (0, ±1, ±φ) and cyclic permutations, φ the golden ratio (common practice).
@@ -70,12 +71,44 @@ export function addSphere(
 
 /** The panel size a sphere gets: the smallest target over its surface, capped by its own radius and segments. */
 export function sphereSize(center: Vec3, radius: number, sizeAt: SizeAt, opts: MeshOptions): number {
-  const samples: [number, number, number][] = ICOSA_VERTICES.map((v) => {
+  return Math.min(minSize(sizeAt, spherePoints(center, radius)), sphereCap(radius, opts));
+}
+
+/** The largest panel a sphere may have: relative to its radius, and at least minSegments around a great circle. */
+function sphereCap(radius: number, opts: MeshOptions): number {
+  // A great circle crosses about 5n panels for subdivision n, each about 2πa/(5n) long.
+  return Math.min(opts.relative * radius, (2 * Math.PI * radius) / opts.minSegments);
+}
+
+/** The icosahedron's vertices and face centres, on the sphere: where the target size is sampled. */
+function spherePoints(center: Vec3, radius: number): [number, number, number][] {
+  const dirs: Vec3[] = [...ICOSA_VERTICES, ...ICOSA_FACES.map((f) => [0, 1, 2].map((k) => f.reduce((s, i) => s + ICOSA_VERTICES[i][k], 0)) as Vec3)];
+  return dirs.map((v) => {
     const l = Math.hypot(v[0], v[1], v[2]);
     return [center[0] + (radius * v[0]) / l, center[1] + (radius * v[1]) / l, center[2] + (radius * v[2]) / l];
   });
-  // A great circle crosses about 5n panels for subdivision n, each about 2πa/(5n) long.
-  return Math.min(minSize(sizeAt, samples), opts.relative * radius, (2 * Math.PI * radius) / opts.minSegments);
+}
+
+/**
+ * Adds a sphere following sizeAt: icosahedral subdivision at the largest target sampled over it
+ * (20n² panels; all there is when the target is uniform), refined locally by longest-edge bisection
+ * with new vertices on the sphere wherever an edge exceeds REFINE_FACTOR times the target there.
+ */
+export function addSphereSized(b: MeshBuilder, center: Vec3, radius: number, sizeAt: SizeAt, opts: MeshOptions, electrode: number, thin: boolean): void {
+  const cap = sphereCap(radius, opts);
+  const samples = spherePoints(center, radius).map((p) => Math.min(cap, sizeAt(p[0], p[1], p[2])));
+  // Subdivide at the largest sampled target, then refine wherever an edge is too long for the local
+  // target (nowhere when the target is uniform: then this is plain 20n² subdivision).
+  const part = new MeshBuilder();
+  addSphere(part, center, radius, sphereSubdivision(radius, Math.max(...samples)), electrode, thin);
+  const pw = part.patchwork();
+  const project = (p: Vec3): Vec3 => {
+    const d = [p[0] - center[0], p[1] - center[1], p[2] - center[2]];
+    const l = Math.hypot(d[0], d[1], d[2]);
+    return [center[0] + (radius * d[0]) / l, center[1] + (radius * d[1]) / l, center[2] + (radius * d[2]) / l];
+  };
+  refineToSize(pw, (x, y, z) => Math.min(cap, sizeAt(x, y, z)), project, REFINE_FACTOR);
+  b.addPatchwork(pw, electrode, thin);
 }
 
 /** A lone sphere mesh with subdivision n (20·n² panels), for tests and benchmarks. */

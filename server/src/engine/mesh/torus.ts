@@ -2,7 +2,8 @@
 // step so the panels are nearly equilateral. Every vertex lies on the true surface.
 import type { Vec3 } from '../../../../grammar/scene';
 import { MeshBuilder, zipRings } from './builder';
-import { type MeshOptions, type SizeAt, basisAround, unit3 } from './grading';
+import { type MeshOptions, REFINE_FACTOR, type SizeAt, basisAround, unit3 } from './grading';
+import { refineToSize } from './refine';
 
 const TAU = 2 * Math.PI;
 
@@ -13,6 +14,10 @@ function torusPoint(c: Vec3, e1: Vec3, e2: Vec3, w: Vec3, R: number, r: number, 
   return [0, 1, 2].map((k) => c[k] + rho * (ct * e1[k] + st * e2[k]) + h * w[k]) as Vec3;
 }
 
+/**
+ * Adds a torus following sizeAt: a grid at the largest target sampled over it (all there is when the
+ * target is uniform), refined locally by longest-edge bisection with new vertices on the true surface.
+ */
 export function addTorus(
   b: MeshBuilder,
   center: Vec3,
@@ -26,13 +31,47 @@ export function addTorus(
 ): void {
   const w = unit3(axis);
   const [e1, e2] = basisAround(w);
-  let h = opts.relative * (major + minor);
+  const cap = opts.relative * (major + minor);
+  const samples: number[] = [];
   for (let i = 0; i < 16; i++) {
     for (let j = 0; j < 4; j++) {
       const p = torusPoint(center, e1, e2, w, major, minor, (TAU * i) / 16, (TAU * j) / 4);
-      h = Math.min(h, sizeAt(p[0], p[1], p[2]));
+      samples.push(Math.min(cap, sizeAt(p[0], p[1], p[2])));
     }
   }
+  // The grid at the largest sampled target, refined wherever an edge is too long for the local target.
+  const part = new MeshBuilder();
+  addTorusGrid(part, center, w, e1, e2, major, minor, Math.max(...samples), opts, electrode, thin);
+  const pw = part.patchwork();
+  // Closest point on the torus: out from the tube's centre circle by the minor radius.
+  const project = (p: Vec3): Vec3 => {
+    const q = [p[0] - center[0], p[1] - center[1], p[2] - center[2]];
+    const h = q[0] * w[0] + q[1] * w[1] + q[2] * w[2];
+    const radial = [q[0] - h * w[0], q[1] - h * w[1], q[2] - h * w[2]];
+    const rl = Math.hypot(radial[0], radial[1], radial[2]);
+    const ring = radial.map((x) => (major * x) / rl);
+    const d = [q[0] - ring[0], q[1] - ring[1], q[2] - ring[2]];
+    const dl = Math.hypot(d[0], d[1], d[2]);
+    return [0, 1, 2].map((k) => center[k] + ring[k] + (minor * d[k]) / dl) as Vec3;
+  };
+  refineToSize(pw, (x, y, z) => Math.min(cap, sizeAt(x, y, z)), project, REFINE_FACTOR);
+  b.addPatchwork(pw, electrode, thin);
+}
+
+/** The torus as rings around the tube at uniform target size h. */
+function addTorusGrid(
+  b: MeshBuilder,
+  center: Vec3,
+  w: Vec3,
+  e1: Vec3,
+  e2: Vec3,
+  major: number,
+  minor: number,
+  h: number,
+  opts: MeshOptions,
+  electrode: number,
+  thin: boolean,
+): void {
   const nTube = Math.max(opts.minSegments, Math.ceil((TAU * minor) / h - 1e-9));
   // Around the major circle, measured on the ring of tube centres; at most maxAspect times the tube step.
   const hMajor = Math.min(h, opts.maxAspect * ((TAU * minor) / nTube));
