@@ -42,17 +42,13 @@ export interface EvalContext {
   /** Every let name of the file, so a forward use is told apart from a typo. */
   allLetNames: ReadonlySet<string>;
   diagnostics: Diagnostic[];
-  /** Counts of units written, keyed by dimension, for suggestions of a likely unit. */
-  unitUse: Map<string, Map<string, number>>;
+  /** How often each unit is written, for suggestions of a likely unit. */
+  unitUse: Map<string, number>;
 }
 
 /** A zero written without a unit fits any dimension. */
 export function isWildcardZero(q: Quantity): boolean {
   return q.value === 0 && isDimensionless(q.dim);
-}
-
-export function dimKey(d: Dim): string {
-  return d.join(',');
 }
 
 function scalar(value: number, dim: Dim, range: Range): EvalValue {
@@ -143,10 +139,7 @@ function evaluateWithUnit(operand: Expr | null, unitText: string, unitRange: Ran
     );
     return null;
   }
-  const key = dimKey(unit.dim);
-  const uses = ctx.unitUse.get(key) ?? new Map<string, number>();
-  uses.set(unitText, (uses.get(unitText) ?? 0) + 1);
-  ctx.unitUse.set(key, uses);
+  ctx.unitUse.set(unitText, (ctx.unitUse.get(unitText) ?? 0) + 1);
   if (!v) return null;
   return finite(mapValue(v, range, (q) => ({ value: applyUnit(q.value, unit), dim: addDim(q.dim, unit.dim), range: q.range })), range, ctx);
 }
@@ -247,7 +240,14 @@ function evaluateCall(fn: string, args: Expr[], fnRange: Range, range: Range, ct
 
 /** The unit most often written for a dimension in this file, or a sensible default. */
 export function likelyUnit(dim: Dim, ctx: Pick<EvalContext, 'unitUse'>, fallback: string): string {
-  const uses = ctx.unitUse.get(dimKey(dim));
-  if (!uses || uses.size === 0) return fallback;
-  return [...uses.entries()].sort((a, b) => b[1] - a[1])[0][0];
+  let best = fallback;
+  let count = 0;
+  for (const [unit, n] of ctx.unitUse) {
+    const u = evaluateUnit(unit);
+    if (u && n > count && sameDim(u.dim, dim)) {
+      best = unit;
+      count = n;
+    }
+  }
+  return best;
 }

@@ -4,7 +4,7 @@
 // `center (0,0,0) radius 5 mm` keeps `radius` a keyword.
 import { createToken, Lexer, type IToken, type TokenType, type CustomPatternMatcherReturn } from 'chevrotain';
 import type { Range } from './scene';
-import { isUnitAtom, splitUnit } from './units';
+import { isUnitAtom } from './units';
 
 // ---- token categories (never matched on their own) ----
 export const StatementKw = createToken({ name: 'StatementKw', pattern: Lexer.NA });
@@ -106,10 +106,7 @@ function matchUnit(text: string, offset: number, tokens: IToken[]): CustomPatter
     if (!isUnitAtom(atom)) break;
     end += more[0].length;
   }
-  // A word continuing straight into letters or digits is not a unit boundary problem: WORD_RE took it whole.
-  const image = text.slice(offset, end);
-  if (!splitUnit(image)) return null;
-  return [image];
+  return [text.slice(offset, end)];
 }
 
 export const Unit = createToken({

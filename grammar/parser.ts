@@ -326,6 +326,51 @@ export function nearStatementWord(word: string): string | null {
   return closest(word, STATEMENT_WORDS);
 }
 
+interface ChunkResult {
+  statements: Statement[];
+  diagnostics: Diagnostic[];
+}
+
+/**
+ * Parsed chunks by position and text. A keystroke changes one statement, so the others come from
+ * here (a chunk's parse depends only on its own text and where it starts). Bounded: cleared when full.
+ */
+const chunkCache = new Map<string, ChunkResult>();
+const CHUNK_CACHE_LIMIT = 20_000;
+
+/** Forgets every cached chunk (for benchmarks that time a cold parse). */
+export function clearParseCache(): void {
+  chunkCache.clear();
+}
+
+function parseChunk(text: string, chunk: IToken[]): ChunkResult {
+  const first = chunk[0];
+  const last = chunk[chunk.length - 1];
+  const key = `${first.startLine}:${first.startColumn}:${text.slice(first.startOffset, last.endOffset! + 1)}`;
+  const hit = chunkCache.get(key);
+  if (hit) return hit;
+  const parsed = parseStatements(chunk);
+  const diagnostics: Diagnostic[] = [];
+  const seen = new Set<string>();
+  for (const e of parsed.errors) {
+    const at = isReal(e.token) ? e.token : last;
+    const range = tokenRange(at);
+    const where = `${range.start.line}:${range.start.character}`;
+    if (seen.has(where)) continue;
+    seen.add(where);
+    const code = e.kind === 'NotAllInputParsedException' || e.message.startsWith(UNEXPECTED) ? 'VS105' : 'VS103';
+    diagnostics.push(diagnostic(code, range, e.message));
+  }
+  const statements = statementsFromCst(parsed.cst);
+  for (const s of statements) {
+    if (s.title) for (const r of s.title.badEscapes) diagnostics.push(diagnostic('VS106', r, 'Unknown escape: strings allow only \\" and \\\\.'));
+  }
+  const result = { statements, diagnostics };
+  if (chunkCache.size >= CHUNK_CACHE_LIMIT) chunkCache.clear();
+  chunkCache.set(key, result);
+  return result;
+}
+
 export interface ParsedText {
   statements: Statement[];
   diagnostics: Diagnostic[];
@@ -334,7 +379,7 @@ export interface ParsedText {
   comments: IToken[];
 }
 
-/** Lexes and parses a whole file; never throws for any text. */
+/** Lexes and parses a whole file; never throws for any text. The statements are shared with a cache: treat them as read-only. */
 export function parseText(text: string): ParsedText {
   const lexed = T.vscapeLexer.tokenize(text);
   const diagnostics: Diagnostic[] = [];
@@ -363,21 +408,9 @@ export function parseText(text: string): ParsedText {
       diagnostics.push(diagnostic('VS104', tokenRange(first), message, near ? { replacement: near } : undefined));
       continue;
     }
-    const parsed = parseStatements(chunk);
-    const seen = new Set<string>();
-    for (const e of parsed.errors) {
-      const at = isReal(e.token) ? e.token : chunk[chunk.length - 1];
-      const range = tokenRange(at);
-      const key = `${range.start.line}:${range.start.character}`;
-      if (seen.has(key)) continue;
-      seen.add(key);
-      const code = e.kind === 'NotAllInputParsedException' || e.message.startsWith(UNEXPECTED) ? 'VS105' : 'VS103';
-      diagnostics.push(diagnostic(code, range, e.message));
-    }
-    for (const s of statementsFromCst(parsed.cst)) {
-      if (s.title) for (const r of s.title.badEscapes) diagnostics.push(diagnostic('VS106', r, 'Unknown escape: strings allow only \\" and \\\\.'));
-      statements.push(s);
-    }
+    const parsed = parseChunk(text, chunk);
+    diagnostics.push(...parsed.diagnostics.map((d) => ({ ...d })));
+    statements.push(...parsed.statements);
   }
   return { statements, diagnostics, tokens, comments: lexed.groups.comments ?? [] };
 }

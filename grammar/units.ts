@@ -104,8 +104,20 @@ export function applyUnit(value: number, unit: UnitValue): number {
   return unit.exponent >= 0 ? v * 10 ** unit.exponent : v / 10 ** -unit.exponent;
 }
 
+const unitCache = new Map<string, UnitValue | null>();
+
 /** Factor to SI and dimension of a unit text, or null when any atom is unknown. */
 export function evaluateUnit(text: string): UnitValue | null {
+  let hit = unitCache.get(text);
+  if (hit === undefined) {
+    hit = computeUnit(text);
+    if (unitCache.size > 1000) unitCache.clear();
+    unitCache.set(text, hit);
+  }
+  return hit;
+}
+
+function computeUnit(text: string): UnitValue | null {
   const parts = splitUnit(text);
   if (!parts) return null;
   let mantissa = 1;
