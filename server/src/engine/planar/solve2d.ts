@@ -15,7 +15,7 @@ import { EPSILON_0 } from '../../../../grammar/scene';
 import { insideElectrode } from '../../../../grammar/geometry';
 import { applyDrives, unchargedFloating } from '../drives';
 import { changeBetweenLevels, richardson, NO_ESTIMATE } from '../convergence';
-import { createSolver, chooseSolver, denseOperator } from '../linear/solver';
+import { createSolver, denseOperator } from '../linear/solver';
 import type { SolveOptions } from '../index';
 import { SAFETY_CAUTION } from '../solve';
 import { sliceGrid as sliceDimensions } from '../evaluate';
@@ -25,6 +25,7 @@ import type { Convergence, ElectrodeResult, Outline, ProbeResult, Result, SliceR
 import { gaussLegendre } from '../special/gauss-legendre';
 import { addElement, assemble, integrateCurve, type KernelAdd, type Mirror } from './bem2d';
 import { curvePoint, splitPiece, type Element2d, type Piece } from './elements';
+import { buildTree, setDensities, treeEvaluate, type Tree2d } from './treecode2d';
 
 type Scene2d = SceneAxisymmetric | ScenePlanar;
 
@@ -142,8 +143,10 @@ function solveLevel(setup: Space2d, scene: Scene2d, elements: Element2d[], eps: 
   }
   if (setup.infinityUnknown) bFree[n] = -setup.free.reduce((s, f) => s + f.total, 0) / (eps * setup.scale);
   rhs.push(bFree);
-  const kind = chooseSolver(size);
-  const solver = createSolver(denseOperator(size, matrix), kind);
+  // Dense LU throughout: 2d systems stay small (MAX_ELEMENTS_2D), each factorization serves every
+  // right-hand side, and the planar system's infinity row has a zero diagonal that Jacobi-preconditioned
+  // iterations handle poorly.
+  const solver = createSolver(denseOperator(size, matrix), 'dense-lu');
   const solved = solver.solve(rhs, { isCancelled: options.isCancelled, tolerance: 1e-12 });
   if (!solved) return null;
   timings[`solve${tag}`] = performance.now() - t;
@@ -268,8 +271,8 @@ function surfacePeaks(setup: Space2d, level: Level, d: Driven, k: number): Surfa
       // Principal-value field: the mean of the fields a step δ = L/1000 to either side along the
       // normal, which cancels the ±τ/2 jump of the element's own density (O(δ²) error).
       const delta = 1e-3 * el.length;
-      fieldAt(setup, elements, far, d, el.mx + delta * el.nx, el.my + delta * el.ny, 'precise', plus);
-      fieldAt(setup, elements, far, d, el.mx - delta * el.nx, el.my - delta * el.ny, 'precise', minus);
+      fieldAt(setup, elements, far, d, el.mx + delta * el.nx, el.my + delta * el.ny, plus);
+      fieldAt(setup, elements, far, d, el.mx - delta * el.nx, el.my - delta * el.ny, minus);
       const ex = 0.5 * (plus[1] + minus[1]);
       const ey = 0.5 * (plus[2] + minus[2]);
       const half = 0.5 * d.tau[i];
@@ -290,31 +293,30 @@ function surfacePeaks(setup: Space2d, level: Level, d: Driven, k: number): Surfa
 const FAR_RULE = 3;
 /** Beyond this many element lengths the cached 3-point rule is used. */
 const FAR_RATIO = 12;
-/**
- * In 'grid' mode (slices), beyond this many lengths a single midpoint sample: about (L/d)²/24 relative
- * per element, 1e-4 or so on a whole grid value (measured on a sphere); probes stay 'precise'.
- */
-const GRID_FAR_RATIO = 40;
-
 /** Potential and field at (u, v) in the scene's coordinates. */
-function evaluate(setup: Space2d, elements: Element2d[], far: Float64Array, d: Driven, u: number, v: number, mode: 'precise' | 'grid', acc: Float64Array): void {
+function evaluate(setup: Space2d, elements: Element2d[], far: Float64Array | Tree2d, d: Driven, u: number, v: number, acc: Float64Array): void {
   const [x, y, sign] = setup.toSolver(u, v);
-  fieldAt(setup, elements, far, d, x, y, mode, acc);
+  fieldAt(setup, elements, far, d, x, y, acc);
   acc[1] *= sign;
 }
 
-/** Potential and field at (x, y) in the solver's half-plane, from every element, image and free charge. */
-function fieldAt(setup: Space2d, elements: Element2d[], far: Float64Array, d: Driven, x: number, y: number, mode: 'precise' | 'grid', acc: Float64Array): void {
+/**
+ * Potential and field at (x, y) in the solver's half-plane, from every element, image and free charge:
+ * by direct summation (`far` the cached 3-point rules), or by the treecode (slice grids).
+ */
+function fieldAt(setup: Space2d, elements: Element2d[], far: Float64Array | Tree2d, d: Driven, x: number, y: number, acc: Float64Array): void {
   acc[0] = setup.infinityUnknown ? d.infinity : 0;
   acc[1] = 0;
   acc[2] = 0;
   const mirror = setup.mirror;
   const kernel = setup.kernel;
-  addSources(elements, far, d.tau, kernel, x, y, mode, acc);
+  const sum = (px: number, py: number, out: Float64Array) =>
+    far instanceof Float64Array ? addSources(elements, far, d.tau, kernel, px, py, out) : treeEvaluate(far, kernel, px, py, out);
+  sum(x, y, acc);
   if (mirror) {
     // Images of opposite sign: φ_img(p) = −φ(Mp), E_img(p) = −M·E(Mp).
     const img = new Float64Array(3);
-    addSources(elements, far, d.tau, kernel, mirror.axis === 0 ? 2 * mirror.at - x : x, mirror.axis === 1 ? 2 * mirror.at - y : y, mode, img);
+    sum(mirror.axis === 0 ? 2 * mirror.at - x : x, mirror.axis === 1 ? 2 * mirror.at - y : y, img);
     acc[0] -= img[0];
     acc[1] += mirror.axis === 0 ? img[1] : -img[1];
     acc[2] += mirror.axis === 1 ? img[2] : -img[2];
@@ -322,15 +324,13 @@ function fieldAt(setup: Space2d, elements: Element2d[], far: Float64Array, d: Dr
   for (const f of setup.free) f.add(x, y, true, acc, false);
 }
 
-function addSources(elements: Element2d[], far: Float64Array, tau: Float64Array, kernel: KernelAdd, x: number, y: number, mode: 'precise' | 'grid', acc: Float64Array): void {
-  const gridFar = mode === 'grid' ? GRID_FAR_RATIO : Infinity;
+function addSources(elements: Element2d[], far: Float64Array, tau: Float64Array, kernel: KernelAdd, x: number, y: number, acc: Float64Array): void {
   for (let j = 0; j < elements.length; j++) {
     const t = tau[j];
     if (t === 0) continue;
     const el = elements[j];
     const ratio = Math.hypot(x - el.mx, y - el.my) / el.length;
-    if (ratio > gridFar) kernel(el.mx, el.my, x, y, t * el.length, true, acc);
-    else if (ratio > FAR_RATIO) {
+    if (ratio > FAR_RATIO) {
       for (let q = 0; q < FAR_RULE; q++) {
         const o = (j * FAR_RULE + q) * 3;
         kernel(far[o], far[o + 1], x, y, t * far[o + 2], true, acc);
@@ -512,7 +512,7 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
       points: points.map((at) => {
         const inside = insideElectrode(scene, at);
         if (inside >= 0) return { at: [...at], potential: dFine.potentials[inside], field: [0, 0], fieldMagnitude: 0 };
-        evaluate(setup, fine.elements, far, dFine, at[0], at[1], 'precise', acc);
+        evaluate(setup, fine.elements, far, dFine, at[0], at[1], acc);
         return { at: [...at], potential: acc[0], field: [acc[1], acc[2]], fieldMagnitude: Math.hypot(acc[1], acc[2]) };
       }),
     };
@@ -521,8 +521,13 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
 
   t = performance.now();
   const slices: SliceResult[] = [];
+  let tree: Tree2d | null = null;
   for (const s of scene.slices) {
-    const slice = sliceGrid(scene, setup, fine, far, dFine, s);
+    if (!tree) {
+      tree = buildTree(fine.elements);
+      setDensities(tree, dFine.tau);
+    }
+    const slice = sliceGrid(scene, setup, fine, tree, dFine, s);
     if (!slice) return null;
     slices.push(slice);
     if (options.isCancelled?.()) return null;
@@ -556,7 +561,7 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
     },
   };
 
-  function sliceGrid(scene: Scene2d, setup: Space2d, level: Level, farN: Float64Array, d: Driven, s: Scene2d['slices'][number]): SliceResult | null {
+  function sliceGrid(scene: Scene2d, setup: Space2d, level: Level, tree: Tree2d, d: Driven, s: Scene2d['slices'][number]): SliceResult | null {
     const u0 = Math.min(s.from[0], s.to[0]);
     const v0 = Math.min(s.from[1], s.to[1]);
     const w = Math.abs(s.to[0] - s.from[0]);
@@ -584,7 +589,7 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
           fieldU[idx] = fieldV[idx] = fieldMagnitude[idx] = NaN;
           continue;
         }
-        evaluate(setup, level.elements, farN, d, u, v, 'grid', a);
+        evaluate(setup, level.elements, tree, d, u, v, a);
         potential[idx] = a[0];
         fieldU[idx] = a[1];
         fieldV[idx] = a[2];
