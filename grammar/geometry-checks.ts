@@ -13,7 +13,7 @@
 //   times 1.5) stays above the tolerance cannot touch and is dropped (the
 //   distance is 1-Lipschitz), the rest are split best-first within a budget, and the best few
 //   points are then polished by a local pattern search. This finds tangent contact to rounding
-//   error; a gap smaller than the search can resolve within its budget is reported as touching.
+//   error; a contact the search has not found when its budget runs out is not reported.
 // Runs on every keystroke: O(n²) over electrodes, with bounding-box rejection before any search.
 import { DIAGNOSTIC_CODES } from './diagnostics';
 import {
