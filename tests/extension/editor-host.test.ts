@@ -3,13 +3,16 @@
 // change updates the picture, a click in the preview selects the electrode's statement.
 // The editor-host part needs the host installed (../shared/tools/editor-host-setup.sh) and runs when
 // VOLTSCAPE_EDITOR_TESTS=1; the package check below runs always.
-import { mkdirSync } from 'node:fs';
+import { runTests } from '@vscode/test-electron';
+import { build } from 'esbuild';
+import { mkdirSync, rmSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { chromium, type Browser, type Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { analyzeText } from '../../grammar/index';
 import { CHROMIUM_ARGS } from '../webview/support';
-import { hostEntry, OUT, openFromExplorer, packageExtension, previewFrame, startHost, statusText, type Host } from './host';
+import { extract } from './unzip';
+import { hostEntry, OUT, ROOT, openFromExplorer, packageExtension, previewFrame, startHost, statusText, type Host } from './host';
 import { readZip } from './unzip';
 
 const SPHERE = `scene "Sphere in the editor host"
@@ -130,5 +133,38 @@ if (!run) {
       await openFromExplorer(page, 'mistakes.vscape');
       await page.waitForSelector('.tabs-container .tab[aria-label*="Field: mistakes.vscape"]', { timeout: 30_000 });
     });
+  });
+}
+
+// The same checks in a VS Code (Electron) build, where one is given: VSCODE_BINARY=/path/to/code.
+const binary = process.env.VSCODE_BINARY;
+if (!binary) {
+  console.log('VS Code (Electron) tests not run: set VSCODE_BINARY to a VS Code executable to run them (none can be downloaded here).');
+} else {
+  describe('the extension in a VS Code (Electron) host', () => {
+    it('shows diagnostics, opens a drawn preview and redraws it after an edit', async () => {
+      const base = join(OUT, 'electron');
+      rmSync(base, { recursive: true, force: true });
+      const ext = join(base, 'extension');
+      extract(readZip(vsix), 'extension/', ext);
+      const workspace = join(base, 'workspace');
+      mkdirSync(workspace, { recursive: true });
+      writeFileSync(join(workspace, 'sphere.vscape'), SPHERE);
+      writeFileSync(join(workspace, 'mistakes.vscape'), MISTAKES);
+      const suite = join(base, 'suite.js');
+      await build({
+        entryPoints: [join(ROOT, 'tests/extension/electron/suite.ts')], outfile: suite, bundle: true,
+        platform: 'node', format: 'cjs', target: 'node20', external: ['vscode'], logLevel: 'warning',
+      });
+      const errors = analyzeText(MISTAKES).diagnostics.filter((d) => d.severity === 'error').length;
+      const code = await runTests({
+        vscodeExecutablePath: binary,
+        extensionDevelopmentPath: ext,
+        extensionTestsPath: suite,
+        extensionTestsEnv: { VOLTSCAPE_EXPECTED_ERRORS: String(errors) },
+        launchArgs: [workspace, '--disable-extensions', '--disable-workspace-trust', '--user-data-dir', join(base, 'user-data')],
+      });
+      expect(code).toBe(0);
+    }, 300_000);
   });
 }
