@@ -4,6 +4,12 @@
 import { solveScene, type EngineCache } from '../engine/index';
 import type { FromWorker, SolveJob } from './worker-messages';
 
+/**
+ * The coarse picture's slice grid is capped at this many cells (64 × 64): the slices cost far more
+ * than the coarse solve itself, and the coarse picture is only there until the refined one comes.
+ */
+export const COARSE_GRID_CELLS = 4096;
+
 export function runSolveJob(
   job: SolveJob,
   cache: EngineCache,
@@ -14,14 +20,17 @@ export function runSolveJob(
     for (const level of job.levels) {
       if (isCancelled()) return post({ type: 'done', id: job.id, state: 'cancelled' });
       const started = performance.now();
+      const coarse = level === 'coarse';
       const result = solveScene(job.scene, {
         level,
         maxPanels: job.maxPanels,
-        maxGridCells: job.maxGridCells,
+        maxGridCells: coarse ? Math.min(job.maxGridCells, COARSE_GRID_CELLS) : job.maxGridCells,
         isCancelled,
         cache,
       });
       if (result === null || isCancelled()) return post({ type: 'done', id: job.id, state: 'cancelled' });
+      // The cap above is ours, not the user's: the grid warning (VS408) counts only for the full level.
+      if (coarse) result.diagnostics = result.diagnostics.filter((d) => d.code !== 'VS408');
       post({ type: 'result', id: job.id, level, result, solveMs: performance.now() - started });
     }
     post({ type: 'done', id: job.id, state: 'done' });
