@@ -44,7 +44,7 @@ export function denseOperator(n: number, matrix: Float64Array): LinearOperator {
 export interface LinearSolveOptions {
   /** Warm starts, one per right-hand side (iterative solvers; direct ones ignore them). */
   initial?: (Float64Array | null | undefined)[];
-  /** Relative residual at which iterative solvers stop (default 1e-10). */
+  /** Relative residual at which iterative solvers stop (default 1e-9). */
   tolerance?: number;
   /** Polled between steps; when it returns true the solve stops and returns null. */
   isCancelled?: () => boolean;
@@ -152,7 +152,7 @@ export function gmresSolver(op: LinearOperator, name: string): LinearSolver {
       for (let k = 0; k < rhs.length; k++) {
         const r = gmres(op, rhs[k], {
           initial: options?.initial?.[k] ?? undefined,
-          tolerance: options?.tolerance ?? 1e-10,
+          tolerance: options?.tolerance ?? 1e-9,
           precondition,
           isCancelled: options?.isCancelled,
         });
