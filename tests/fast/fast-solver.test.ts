@@ -113,7 +113,7 @@ describe('fast solver against dense LU', () => {
     const ref = denseSolve(Float64Array.from(dense), n, rhs);
     const C = [[0, 0], [0, 0]], Cref = [[0, 0], [0, 0]];
     for (let e = 0; e < 2; e++) {
-      const { x, info } = fast.solve(rhs[e]);
+      const { x, info } = fast.solve(rhs[e])!;
       expect(info.converged).toBe(true);
       // Panel charges q = σ·area, compared panel by panel relative to the largest.
       let worst = 0, big = 0;
@@ -139,13 +139,13 @@ describe('fast solver against dense LU', () => {
 
   it('converges at once from a warm start at the solution, and in fewer iterations from a near one', () => {
     const b = Float64Array.from(mesh.electrode, (o) => (o === 0 ? 1 : 0));
-    const cold = fast.solve(b);
-    const hot = fast.solve(b, cold.x);
+    const cold = fast.solve(b)!;
+    const hot = fast.solve(b, cold.x)!;
     expect(hot.info.iterations).toBeLessThanOrEqual(1);
     // An edit that changes the drive by 1% starts from the old solution and needs fewer steps.
     const b2 = b.map((v) => v * 1.01);
-    const warm = fast.solve(b2, cold.x);
-    const again = fast.solve(b2);
+    const warm = fast.solve(b2, cold.x)!;
+    const again = fast.solve(b2)!;
     expect(warm.info.iterations).toBeLessThan(again.info.iterations);
   });
 });

@@ -49,8 +49,8 @@ export interface FastSolver {
   size: number;
   /** y = A·x in the caller's numbering. */
   apply(x: Float64Array, y: Float64Array): void;
-  /** Solves A·x = b; x0 is a warm start (e.g. the solution before an edit). */
-  solve(b: Float64Array, x0?: Float64Array | null): { x: Float64Array; info: FastSolveInfo };
+  /** Solves A·x = b; x0 is a warm start (e.g. the solution before an edit). Null when cancelled. */
+  solve(b: Float64Array, x0?: Float64Array | null, control?: { tol?: number; isCancelled?: () => boolean }): { x: Float64Array; info: FastSolveInfo } | null;
   stats: FastSolverStats;
   H: HMatrix;
 }
@@ -94,7 +94,7 @@ export function buildFastSolver(
       hmatvecTreeOrder(H, xp, yp);
       for (let k = 0; k < n; k++) y[order[k]] = yp[k];
     },
-    solve(b, x0 = null) {
+    solve(b, x0 = null, control = {}) {
       const bp = new Float64Array(n);
       for (let k = 0; k < n; k++) bp[k] = b[order[k]];
       let x0p: Float64Array | null = null;
@@ -102,7 +102,8 @@ export function buildFastSolver(
         x0p = new Float64Array(n);
         for (let k = 0; k < n; k++) x0p[k] = x0[order[k]];
       }
-      const r: GmresResult = gmres(applyTree, bp, precondition, x0p, { tol: o.tol, restart: o.restart });
+      const r: GmresResult | null = gmres(applyTree, bp, precondition, x0p, { tol: control.tol ?? o.tol, restart: o.restart, isCancelled: control.isCancelled });
+      if (!r) return null;
       const x = new Float64Array(n);
       for (let k = 0; k < n; k++) x[order[k]] = r.x[k];
       return { x, info: { iterations: r.iterations, relativeResidual: r.relativeResidual, converged: r.converged } };

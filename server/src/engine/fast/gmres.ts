@@ -15,6 +15,8 @@ export interface GmresOptions {
   restart?: number;
   /** Most iterations in all (default 1000). */
   maxIterations?: number;
+  /** Polled every iteration; when it returns true the solve stops and returns null. */
+  isCancelled?: () => boolean;
 }
 
 export interface GmresResult {
@@ -26,7 +28,7 @@ export interface GmresResult {
 }
 
 /** Solves A·x = b; `x0` is a warm start (the previous solution after an edit), else zeros. */
-export function gmres(A: Apply, b: Float64Array, precondition: Apply | null, x0: Float64Array | null, options: GmresOptions = {}): GmresResult {
+export function gmres(A: Apply, b: Float64Array, precondition: Apply | null, x0: Float64Array | null, options: GmresOptions = {}): GmresResult | null {
   const n = b.length;
   const tol = options.tol ?? 1e-9;
   const mMax = Math.max(1, Math.min(options.restart ?? 60, n));
@@ -55,6 +57,7 @@ export function gmres(A: Apply, b: Float64Array, precondition: Apply | null, x0:
     g[0] = beta;
     let k = 0;
     for (; k < mMax && iterations < maxIt; k++) {
+      if (options.isCancelled?.()) return null;
       iterations++;
       if (precondition) precondition(V[k], Z);
       else Z.set(V[k]);

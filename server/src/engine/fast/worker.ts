@@ -8,7 +8,12 @@ export function isFastWorker(): boolean {
   return !isMainThread && (workerData as { voltscapeFastWorker?: boolean } | null)?.voltscapeFastWorker === true;
 }
 
+let started = false;
+
+/** Starts answering jobs (once; later calls do nothing). */
 export function startFastWorker(): void {
+  if (started) return;
+  started = true;
   const port = (workerData as { port: MessagePort }).port;
   port.on('message', (msg: (AssembleJob | EvaluateJob) & { done: Int32Array }) => {
     try {

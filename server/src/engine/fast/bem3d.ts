@@ -1,0 +1,98 @@
+// Plugs the fast methods into the 3D solver: registers the hierarchical-matrix GMRES
+// ('hmatrix-gmres') with the linear-algebra interface and the 3D operator factory, and answers
+// field evaluations of large systems by the treecode. Importing this module registers it.
+//
+// Hooks in files owned by others (each marked "fast-solver hook" there):
+// - linear/solver.ts chooseSolver: systems above FAST_MIN_UNKNOWNS go to 'hmatrix-gmres' once registered;
+// - bem3d/field.ts potentialAndField: imports this module and asks fastPotentialAndGradient first.
+import { registerBem3dOperator } from '../bem3d/operator';
+import { INV_4PI, type Bem3dSystem, type EvalMode } from '../bem3d/system';
+import { registerSolver, type LinearOperator, type LinearSolver } from '../linear/solver';
+import type { FastSolver } from './fast-solver';
+import { FieldEvaluator } from './field-evaluator';
+import { buildPanelSolver } from './panel-solver';
+
+export const FAST_KIND = 'hmatrix-gmres';
+/** Above this many unknowns the H-matrix solver replaces dense GMRES (see scripts/bench-fast.ts). */
+export const FAST_MIN_UNKNOWNS = 2500;
+/** From this many panels, field evaluation goes through the treecode. */
+export const FAST_EVAL_MIN_PANELS = 2500;
+/** Opening angles: slices (about 1e-3 relative) and probes or surface fields (about 2e-5). */
+export const GRID_THETA = 0.5;
+export const PRECISE_THETA = 0.15;
+
+interface FastOperator extends LinearOperator {
+  fast: FastSolver;
+}
+
+/** The H-matrix operator of a 3D system (entries as bem3d/system.ts entry()). */
+export function fastOperator(sys: Bem3dSystem): FastOperator {
+  const fast = buildPanelSolver(
+    { vertices: sys.mesh.vertices, triangles: sys.mesh.triangles, points: sys.points, scale: INV_4PI, images: sys.images },
+    {},
+    sys.panels,
+  );
+  return { n: sys.n, fast, apply: (x, y) => fast.apply(x, y) };
+}
+
+/** GMRES on the H-matrix with its block-Jacobi preconditioner, warm-started when given an initial guess. */
+export function fastLinearSolver(op: LinearOperator): LinearSolver {
+  const fast = (op as FastOperator).fast;
+  if (!fast) throw new Error(`${FAST_KIND} needs the operator built by fastOperator`);
+  const solver: LinearSolver = {
+    name: FAST_KIND,
+    iterations: [],
+    solve(rhs, options) {
+      solver.iterations.length = 0;
+      const out: Float64Array[] = [];
+      for (let k = 0; k < rhs.length; k++) {
+        const r = fast.solve(rhs[k], options?.initial?.[k] ?? null, { tol: options?.tolerance ?? 1e-10, isCancelled: options?.isCancelled });
+        if (!r) return null;
+        solver.iterations.push(r.info.iterations);
+        out.push(r.x);
+      }
+      return out;
+    },
+  };
+  return solver;
+}
+
+registerBem3dOperator(FAST_KIND, (sys) => fastOperator(sys));
+registerSolver(FAST_KIND, false, fastLinearSolver);
+
+const evaluators = new WeakMap<Float64Array, { sys: Bem3dSystem; evaluator: FieldEvaluator }>();
+
+/**
+ * [φ, ∂φ/∂x, ∂φ/∂y, ∂φ/∂z] of the scaled densities xs at (x, y, z) into out, by the treecode, when
+ * the system is large enough for it to pay; returns false (and leaves out alone) otherwise.
+ */
+export function fastPotentialAndGradient(sys: Bem3dSystem, xs: Float64Array, x: number, y: number, z: number, out: Float64Array, mode: EvalMode): boolean {
+  if (sys.n < FAST_EVAL_MIN_PANELS) return false;
+  let hit = evaluators.get(xs);
+  if (!hit || hit.sys !== sys) {
+    hit = { sys, evaluator: new FieldEvaluator(sys.mesh, xs, INV_4PI, sys.images, {}, sys.panels) };
+    evaluators.set(xs, hit);
+  }
+  const [phi, ex, ey, ez] = hit.evaluator.at(x, y, z, mode === 'grid' ? GRID_THETA : PRECISE_THETA);
+  out[0] = phi;
+  out[1] = -ex;
+  out[2] = -ey;
+  out[3] = -ez;
+  return true;
+}
+
+/** Many points at once (slices, probe lines), on several threads: [φ, ∂φ/∂x, ∂φ/∂y, ∂φ/∂z] per point. */
+export function fastPotentialAndGradientMany(sys: Bem3dSystem, xs: Float64Array, points: Float64Array, mode: EvalMode): Float64Array {
+  let hit = evaluators.get(xs);
+  if (!hit || hit.sys !== sys) {
+    hit = { sys, evaluator: new FieldEvaluator(sys.mesh, xs, INV_4PI, sys.images, {}, sys.panels) };
+    evaluators.set(xs, hit);
+  }
+  const v = hit.evaluator.evaluate(points, mode === 'grid' ? GRID_THETA : PRECISE_THETA);
+  const out = new Float64Array(4 * v.potential.length);
+  for (let i = 0; i < v.potential.length; i++) {
+    out[4 * i] = v.potential[i];
+    for (let c = 0; c < 3; c++) out[4 * i + 1 + c] = -v.field[3 * i + c];
+  }
+  return out;
+}
