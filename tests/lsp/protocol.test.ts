@@ -1,9 +1,11 @@
 // Protocol tests: the real server process (node dist/server.js --stdio) driven by a real JSON-RPC
 // client. Every wait is for a notification or an answer, never a fixed sleep.
+import { readdirSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { decodeResult } from '../../server/src/engine/result-json';
 import { EPSILON_0 } from '../../grammar/scene';
+import { DIAGNOSTIC_CODES } from '../../grammar/diagnostics';
 import { ensureBuilt, LspClient } from './lsp-client';
 
 const root = join(__dirname, '../..');
@@ -181,5 +183,32 @@ describe('the language server over stdio', () => {
     const full = await client.waitFor('voltscape/result', (p) => p.uri === uri && p.level === 'full', since);
     const slice = decodeResult(full.params.result).slices[0];
     expect(slice.nu * slice.nv).toBeLessThanOrEqual(400);
+  });
+});
+
+describe('samples and the CLI entry', () => {
+  it('publishes diagnostics with registered codes for every sample', async () => {
+    const samples = readdirSync(join(root, 'samples')).filter((f) => f.endsWith('.vscape'));
+    expect(samples.length).toBeGreaterThan(0);
+    for (const f of samples) {
+      const sampleUri = `file:///samples/${f}`;
+      const since = client.received.length;
+      await client.open(sampleUri, readFileSync(join(root, 'samples', f), 'utf8'), 1);
+      const d = await client.diagnostics(sampleUri, 1, since);
+      for (const x of d.params.diagnostics) expect(DIAGNOSTIC_CODES[x.code], `${f}: ${x.code}`).toBeDefined();
+      await client.close(sampleUri);
+    }
+  });
+
+  it('runs as `voltscape lsp --stdio`', async () => {
+    const cli = await LspClient.start(join(root, 'dist/cli.js'), {}, ['lsp', '--stdio']);
+    try {
+      expect(cli.initializeResult.serverInfo.name).toBe('voltscape');
+      await cli.open(uri, SCENE.replace('0 V', '0 v'), 1);
+      const d = await cli.diagnostics(uri, 1);
+      expect(d.params.diagnostics.map((x: any) => x.code)).toContain('VS201');
+    } finally {
+      await cli.stop();
+    }
   });
 });
