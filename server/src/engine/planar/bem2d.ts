@@ -109,27 +109,60 @@ export function assemble(elements: Element2d[], kernel: KernelAdd, mirror: Mirro
   const n = elements.length;
   const a = new Float64Array(n * n);
   const acc = new Float64Array(3);
+  const far = farRules(elements);
   for (let i = 0; i < n; i++) {
     if (isCancelled && (i & 31) === 0 && isCancelled()) return null;
     const ei = elements[i];
-    for (let j = 0; j < n; j++) {
-      acc[0] = 0;
-      if (i === j) {
-        acc[0] = selfPotential(ei, kernel);
-        if (mirror) {
-          const img = new Float64Array(3);
-          const mx = mirror.axis === 0 ? 2 * mirror.at - ei.mx : ei.mx;
-          const my = mirror.axis === 1 ? 2 * mirror.at - ei.my : ei.my;
-          integrateCurve(ei, 0, ei.length, mx, my, kernel, 1, false, img);
-          acc[0] -= img[0];
-        }
-      } else {
-        addElement(elements[j], ei.mx, ei.my, kernel, mirror, 1, false, acc);
-      }
-      a[i * n + j] = acc[0];
+    const row = i * n;
+    addRow(elements, far, kernel, ei.mx, ei.my, i, 1, a, row, acc);
+    a[row + i] += selfPotential(ei, kernel);
+    if (mirror) {
+      const mx = mirror.axis === 0 ? 2 * mirror.at - ei.mx : ei.mx;
+      const my = mirror.axis === 1 ? 2 * mirror.at - ei.my : ei.my;
+      addRow(elements, far, kernel, mx, my, -1, -1, a, row, acc);
     }
   }
   return a;
+}
+
+/** Beyond this many element lengths from the target an element's cached 3-point rule is used. */
+export const FAR_RATIO = 12;
+export const FAR_RULE = 3;
+
+/** The 3-point Gauss rule of every element: x, y, weight·length per point. */
+export function farRules(elements: Element2d[]): Float64Array {
+  const rule = gaussLegendre(FAR_RULE);
+  const out = new Float64Array(elements.length * FAR_RULE * 3);
+  const p = new Float64Array(4);
+  elements.forEach((el, j) => {
+    for (let q = 0; q < FAR_RULE; q++) {
+      curvePoint(el, el.length * rule.nodes[q], p);
+      const o = (j * FAR_RULE + q) * 3;
+      out[o] = p[0];
+      out[o + 1] = p[1];
+      out[o + 2] = el.length * rule.weights[q];
+    }
+  });
+  return out;
+}
+
+/** a[row + j] += sign · (potential at (x, y) of unit density on element j), for every j but `skip`. */
+function addRow(elements: Element2d[], far: Float64Array, kernel: KernelAdd, x: number, y: number, skip: number, sign: number, a: Float64Array, row: number, acc: Float64Array): void {
+  for (let j = 0; j < elements.length; j++) {
+    if (j === skip) continue;
+    const el = elements[j];
+    acc[0] = 0;
+    const dx = x - el.mx;
+    const dy = y - el.my;
+    const reach = FAR_RATIO * el.length;
+    if (dx * dx + dy * dy > reach * reach) {
+      const o = j * FAR_RULE * 3;
+      kernel(far[o], far[o + 1], x, y, far[o + 2], false, acc);
+      kernel(far[o + 3], far[o + 4], x, y, far[o + 5], false, acc);
+      kernel(far[o + 6], far[o + 7], x, y, far[o + 8], false, acc);
+    } else integrateCurve(el, 0, el.length, x, y, kernel, 1, false, acc);
+    a[row + j] += sign * acc[0];
+  }
 }
 
 /**
