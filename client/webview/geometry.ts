@@ -18,7 +18,9 @@ export interface Frame {
 export function makeFrame(slice: SliceResult, maxWidth = 760, maxHeight = 560, left = 64, top = 16): Frame {
   const su = slice.nu * slice.du;
   const sv = slice.nv * slice.dv;
-  const scale = Math.min(maxWidth / su, maxHeight / sv);
+  let scale = Math.min(maxWidth / su, maxHeight / sv);
+  // A tall, narrow slice (an r–z half-plane) may grow taller so that it is not too thin to read.
+  if (su * scale < 340) scale = Math.min(maxWidth / su, (maxHeight * 1.35) / sv);
   return {
     left,
     top,

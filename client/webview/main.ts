@@ -106,6 +106,8 @@ function render(): void {
       palette,
       title: shown.title,
     });
+    // Never wider than drawn: a tall, narrow slice must not blow up to the page's width.
+    picture.svg.style.maxWidth = `${picture.svg.getAttribute('width')}px`;
     figure.appendChild(picture.svg);
     figure.dataset.levels = String(picture.levels);
     for (const note of picture.notes) htmlEl('li', {}, notesEl, note);

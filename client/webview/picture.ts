@@ -317,9 +317,14 @@ export function drawPicture(result: Result, sliceIndex: number, options: Picture
     const [x, y] = toPx(f, q.u, q.v);
     const g = svgEl('g', { class: off ? 'peak peak-off-slice' : 'peak', 'data-electrode': index }, peakLayer);
     svgEl('circle', { cx: px(x), cy: px(y), r: 5.5, fill: off ? 'none' : palette.peak, stroke: palette.peak, 'stroke-width': 1.8, 'stroke-dasharray': off ? '2 2' : 'none' }, g);
-    const label = off ? `${e.name} peak ${value} (${formatLength(Math.abs(q.off), 2)} off slice)` : `${e.name} peak ${value}`;
+    const roomRight = f.left + f.width - (x + 9);
+    const roomLeft = x - 9 - f.left;
+    // The full label where it fits, else the value alone (the name is in the table and the notes).
+    let label = off ? `${e.name} peak ${value} (${formatLength(Math.abs(q.off), 2)} off slice)` : `${e.name} peak ${value}`;
+    if (label.length * 6.4 > Math.max(roomLeft, roomRight)) label = value;
     const textWidth = label.length * 6.4;
-    const anchorEnd = x + 9 + textWidth > f.left + f.width && x - 9 - textWidth >= f.left;
+    // Start-anchored unless that runs past the right edge and there is more room to the left.
+    const anchorEnd = textWidth > roomRight && roomLeft > roomRight;
     const tx = anchorEnd ? x - 9 : x + 9;
     const ty = freeY(anchorEnd ? tx - textWidth : tx, anchorEnd ? tx : tx + textWidth, y - 8);
     svgEl('text', {
