@@ -1,6 +1,6 @@
 // End to end: the built dist/cli.js on real scene files, spawned as a user would run it.
 // The build is reused when it is newer than the sources; otherwise it is rebuilt once here.
-import { spawnSync } from 'node:child_process';
+import { spawn, spawnSync } from 'node:child_process';
 import { existsSync, mkdtempSync, readdirSync, readFileSync, rmSync, statSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
@@ -200,5 +200,40 @@ describe('voltscape solve on a file with errors, and usage', () => {
     const unknown = voltscape(['bake', 'x']);
     expect(unknown.code).toBe(2);
     expect(unknown.stderr).toContain('Usage:');
+  });
+});
+
+describe('the --html export and the lsp command', () => {
+  it('writes the preview page as one HTML file under a nonce Content-Security-Policy, with the result as JSON data', () => {
+    const out = join(work, 'sphere.html');
+    const run = voltscape(['solve', 'samples/lone-sphere.vscape', '--html', out]);
+    expect(run.code).toBe(0);
+    const html = readFileSync(out, 'utf8');
+    expect(html).toMatch(/^<!DOCTYPE html>/);
+    expect(html).toMatch(/Content-Security-Policy" content="default-src 'none'; script-src 'nonce-/);
+    expect(html).toContain('<script type="application/json" id="voltscape-data">');
+    expect(html).toContain('voltscape-result/1');
+  });
+
+  it('starts the language server on stdio and answers initialize', async () => {
+    const child = spawn(process.execPath, [cli, 'lsp', '--stdio'], { cwd: root });
+    try {
+      const message = JSON.stringify({ jsonrpc: '2.0', id: 1, method: 'initialize', params: { processId: null, rootUri: null, capabilities: {} } });
+      child.stdin.write(`Content-Length: ${Buffer.byteLength(message)}\r\n\r\n${message}`);
+      const reply = await new Promise<string>((resolve, reject) => {
+        let out = '';
+        child.stdout.on('data', (d) => {
+          out += d;
+          const body = out.indexOf('\r\n\r\n');
+          if (body >= 0 && out.includes('"id":1')) resolve(out.slice(body + 4));
+        });
+        child.on('exit', (code) => reject(new Error(`server exited with ${code}`)));
+      });
+      const json = JSON.parse(reply);
+      expect(json.id).toBe(1);
+      expect(json.result.capabilities.hoverProvider).toBe(true);
+    } finally {
+      child.kill();
+    }
   });
 });

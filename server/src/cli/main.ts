@@ -5,6 +5,7 @@ import { readFileSync, writeFileSync } from 'node:fs';
 import pkg from '../../../package.json';
 import { analyzeText } from '../../../grammar/index';
 import { solveScene } from '../engine/index';
+import { renderPreviewHtml } from './html-export';
 import { EXIT_FAILED, firstLine, run, type Io, type Stages } from './run';
 
 function fatal(error: unknown): void {
@@ -25,6 +26,12 @@ const stages: Stages = {
   version: pkg.version,
   analyzeText,
   solveScene: (scene) => solveScene(scene),
+  renderPreviewHtml: ({ file, scene, result }) => renderPreviewHtml(result, scene.title ?? file),
+  // Loaded only for `voltscape lsp`, so the other commands start without the server's modules.
+  startLanguageServer: async () => {
+    const { startLanguageServer } = await import('../lsp/server');
+    startLanguageServer();
+  },
 };
 
 run(process.argv.slice(2), io, stages).then(

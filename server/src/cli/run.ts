@@ -44,8 +44,8 @@ export interface Stages {
   solveScene(scene: Scene): Result | null;
   /** The `--html` export; absent until the preview page exists. */
   renderPreviewHtml?: (input: PreviewInput) => string;
-  /** `voltscape lsp --stdio`; absent until the language server exists. */
-  startLanguageServer?: () => void;
+  /** `voltscape lsp --stdio`: starts the server, which then keeps the process alive. */
+  startLanguageServer?: () => void | Promise<void>;
 }
 
 export async function run(argv: readonly string[], io: Io, stages: Stages): Promise<number> {
@@ -65,7 +65,7 @@ export async function run(argv: readonly string[], io: Io, stages: Stages): Prom
         io.err('voltscape: the language server is not part of this build\n');
         return EXIT_FAILED;
       }
-      stages.startLanguageServer();
+      await stages.startLanguageServer();
       return EXIT_CLEAN;
     case 'check':
       return check(command.files, io, stages);
@@ -244,19 +244,22 @@ async function solve(cmd: SolveCommand, io: Io, stages: Stages): Promise<number>
   else io.out(renderReport({ file: cmd.file, scene, result, diagnostics }));
 
   const outputs: [string, () => string][] = [];
-  if (cmd.svg) {
-    const drawn = completeSlices(scene, result);
-    outputs.push([cmd.svg, () => renderSvg({ title: scene.title ?? cmd.file, subtitle: subtitle(scene), result: drawn })]);
-  }
+  // Pictures get outlines and ground traces cut from the scene where the solve left them out.
+  const drawn = cmd.svg || cmd.html ? completeSlices(scene, result) : result;
+  if (cmd.svg) outputs.push([cmd.svg, () => renderSvg({ title: scene.title ?? cmd.file, subtitle: subtitle(scene), result: drawn })]);
   if (cmd.html && stages.renderPreviewHtml) {
     const render = stages.renderPreviewHtml;
-    outputs.push([cmd.html, () => render({ file: cmd.file, scene, result, diagnostics })]);
+    outputs.push([cmd.html, () => render({ file: cmd.file, scene, result: drawn, diagnostics })]);
   }
   for (const [path, render] of outputs) {
-    const made = guarded(`drawing ${path}`, render);
-    if (!made.ok) return fail(made.message);
+    let made: string;
     try {
-      io.writeFile(path, made.value);
+      made = render();
+    } catch (error) {
+      return fail(`could not make ${path}: ${firstLine(error)}`);
+    }
+    try {
+      io.writeFile(path, made);
     } catch (error) {
       return fail(`cannot write ${path}: ${describeFsError(error)}`);
     }
