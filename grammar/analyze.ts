@@ -842,6 +842,46 @@ function checkMagnitudes(st: State) {
   }
 }
 
+function analyzeStatement(st: State, b: Builder, s: Statement) {
+  switch (s.type) {
+    case 'scene':
+      if (once(st, b.title.range, s)) b.title = { value: s.title?.value ?? null, range: s.keyword.range };
+      break;
+    case 'space':
+      break;
+    case 'medium':
+      analyzeMedium(st, b, s);
+      break;
+    case 'mesh':
+      analyzeMesh(st, b, s);
+      break;
+    case 'let':
+      analyzeLet(st, s);
+      break;
+    case 'electrode':
+      analyzeElectrode(st, b, s);
+      break;
+    case 'ground':
+      analyzeGround(st, b, s);
+      break;
+    case 'charge':
+      analyzeCharge(st, b, s);
+      break;
+    case 'slice':
+      analyzeSlice(st, b, s);
+      break;
+    case 'probe':
+      analyzeProbe(st, b, s);
+      break;
+    case 'limit':
+      analyzeLimit(st, b, s);
+      break;
+    case 'sweep':
+      analyzeSweep(st, b, s);
+      break;
+  }
+}
+
 /** Analyses parsed statements into a Scene with diagnostics. Never throws for any input. */
 export function analyze(parsed: ParsedText, range: Range): Omit<Analysis, 'diagnostics'> & { diagnostics: Diagnostic[] } {
   const diagnostics: Diagnostic[] = [...parsed.diagnostics];
@@ -890,43 +930,10 @@ export function analyze(parsed: ParsedText, range: Range): Omit<Analysis, 'diagn
   };
 
   for (const s of statements) {
-    switch (s.type) {
-      case 'scene':
-        if (once(st, b.title.range, s)) b.title = { value: s.title?.value ?? null, range: s.keyword.range };
-        break;
-      case 'space':
-        break;
-      case 'medium':
-        analyzeMedium(st, b, s);
-        break;
-      case 'mesh':
-        analyzeMesh(st, b, s);
-        break;
-      case 'let':
-        analyzeLet(st, s);
-        break;
-      case 'electrode':
-        analyzeElectrode(st, b, s);
-        break;
-      case 'ground':
-        analyzeGround(st, b, s);
-        break;
-      case 'charge':
-        analyzeCharge(st, b, s);
-        break;
-      case 'slice':
-        analyzeSlice(st, b, s);
-        break;
-      case 'probe':
-        analyzeProbe(st, b, s);
-        break;
-      case 'limit':
-        analyzeLimit(st, b, s);
-        break;
-      case 'sweep':
-        analyzeSweep(st, b, s);
-        break;
-    }
+    const before = diagnostics.length;
+    analyzeStatement(st, b, s);
+    // After a syntax error in the statement, its meaning errors are mostly echoes of it: keep the syntax error alone.
+    if (s.broken) diagnostics.length = before;
   }
   checkMagnitudes(st);
 

@@ -80,6 +80,8 @@ export interface Statement {
   value: Expr | null;
   attributes: Attribute[];
   range: Range;
+  /** True when the parser recovered from a syntax error inside this statement. */
+  broken: boolean;
 }
 
 export interface SceneAst {
@@ -317,7 +319,7 @@ function statement(cst: CstNode): Statement | null {
     const attrsCtx = node(inner, 'attributes');
     const attributes = attrsCtx ? nodes(attrsCtx, 'attribute').map(attribute).filter((a): a is Attribute => !!a) : [];
     const range = extend(keyword.range, [name?.range, head?.range, title?.range, ...points.map((p) => p.range), letValue?.range, ...attributes.map((a) => a.range), ...toks(inner, 'Identifier').map(tokenRange), ...toks(inner, 'Equals').map(tokenRange), ...toks(inner, 'PlaneKw').map(tokenRange)]);
-    return { kind: 'statement', type, keyword, name, head, title, points, value: letValue, attributes, range };
+    return { kind: 'statement', type, keyword, name, head, title, points, value: letValue, attributes, range, broken: false };
   }
   return null;
 }

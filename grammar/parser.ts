@@ -4,7 +4,7 @@
 // messages ("a disc cannot be hollow") than a grammar error could.
 import { CstParser, EOF, tokenMatcher, type CstNode, type IParserErrorMessageProvider, type IToken, type TokenType } from 'chevrotain';
 import * as T from './lexer';
-import { isReal, statementsFromCst, tokenRange, type Statement } from './ast';
+import { comparePositions, isReal, statementsFromCst, tokenRange, type Statement } from './ast';
 import { diagnostic } from './diagnostics';
 import type { Diagnostic } from './scene';
 import { closest } from './units';
@@ -20,8 +20,14 @@ function describeToken(tok: IToken): string {
   return `'${tok.image}'`;
 }
 
+/** First tokens of an expression, said in one word in messages. */
+const VALUE_STARTERS = new Set([T.AdditiveOp, T.Plus, T.Minus, T.NumberLiteral, T.Identifier, T.FuncName, T.LParen].map(describeTokenType));
+
 function listExpected(types: TokenType[]): string {
-  const labels = [...new Set(types.map(describeTokenType))];
+  let labels = [...new Set(types.map(describeTokenType))];
+  if (labels.includes(describeTokenType(T.NumberLiteral)) && labels.includes(describeTokenType(T.LParen))) {
+    labels = [...labels.filter((l) => !VALUE_STARTERS.has(l)), 'a value (a number, a name or a tuple)'];
+  }
   if (labels.length <= 1) return labels[0] ?? 'something else';
   if (labels.length > 5) return labels.slice(0, 5).join(', ') + ' or more';
   return labels.slice(0, -1).join(', ') + ' or ' + labels[labels.length - 1];
@@ -362,6 +368,11 @@ function parseChunk(text: string, chunk: IToken[]): ChunkResult {
     diagnostics.push(diagnostic(code, range, e.message));
   }
   const statements = statementsFromCst(parsed.cst);
+  // A statement the parser had to repair is marked, so analysis does not pile its own errors on top.
+  for (const d of diagnostics) {
+    const owner = statements.filter((s) => comparePositions(s.range.start, d.range.start) <= 0).pop() ?? statements[0];
+    if (owner) owner.broken = true;
+  }
   for (const s of statements) {
     if (s.title) for (const r of s.title.badEscapes) diagnostics.push(diagnostic('VS106', r, 'Unknown escape: strings allow only \\" and \\\\.'));
   }

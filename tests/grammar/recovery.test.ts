@@ -44,4 +44,14 @@ probe p point at (0, 0, 15) mm`;
     expect(errors.map((d) => d.code).sort()).toEqual(['VS209', 'VS211', 'VS220']);
     expect(errors.every((d) => d.range.start.line === 0)).toBe(true);
   });
+
+  it('reports a syntax error alone, without the meaning errors it causes in the same statement', () => {
+    const a = analyzeText('electrode a sphere center (0, 0 radius 5 mm floating\nslice xz at y 0 from (0, 0) m to (1, 1) m');
+    expect(a.diagnostics.map((d) => `${d.range.start.line}:${d.range.start.character}:${d.code}`)).toEqual(['0:32:VS103', '1:14:VS105']);
+  });
+
+  it('names what was expected in words of the language', () => {
+    expect(analyzeText('let a = 5 *').diagnostics[0].message).toBe('Expected a value (a number, a name or a tuple) but found the end of the statement.');
+    expect(analyzeText('electrode sphere center (0, 0, 0) radius 1 mm floating').diagnostics[0].message).toContain("'sphere', a reserved word");
+  });
 });
