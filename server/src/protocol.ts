@@ -47,7 +47,8 @@ export interface ResultParams {
   level: SolveLevel;
   /**
    * True when the document has changed since and the newest text cannot be solved (it has errors):
-   * the picture shown is the last good one.
+   * the picture shown is the last good one. The server re-sends the last result once, marked
+   * stale, when the text first gets errors; `voltscape/solveStatus` says 'stale' for every such version.
    */
   stale: boolean;
   /** The Result, encoded by encodeResult (server/src/engine/result-json.ts); decode with decodeResult. */
