@@ -1,6 +1,7 @@
 // Panel sizes: presets, explicit sizes, levels, grading toward edges, local refinement, guards.
 import { describe, expect, it } from 'vitest';
 import type { Shape3d } from '../../grammar/scene';
+import { BODY_PANEL_LIMIT } from '../../server/src/engine/mesh/grading';
 import {
   EDGE_RATIO,
   MAX_PANELS,
@@ -141,6 +142,16 @@ describe('robustness', () => {
     const m = meshScene(scene3d([cube]), () => 1e-7);
     expect(m.area.length).toBeLessThan(2 * MAX_PANELS);
     expect(unpairedEdges(m)).toBe(0);
+  });
+
+  it('keeps a very long fine wire and a slender ring within the per-body panel limit', () => {
+    const wire: Shape3d = { kind: 'cylinder', from: [0, 0, 0], to: [0, 0, 1], radius: 1e-6, hollow: false };
+    const ring: Shape3d = { kind: 'torus', center: [0, 0, 0], axis: [0, 0, 1], major: 1, minor: 1e-6, hollow: false };
+    for (const shape of [wire, ring]) {
+      const m = meshForScene(scene3d([shape]));
+      expect(m.area.length).toBeLessThan(1.2 * BODY_PANEL_LIMIT);
+      expect(unpairedEdges(m)).toBe(0);
+    }
   });
 
   it('falls back to the normal size for a non-positive or NaN size', () => {

@@ -3,7 +3,7 @@
 import type { Vec3 } from '../../../../grammar/scene';
 import { MeshBuilder, zipRings } from './builder';
 import { addRing, fillDisc, sizeOnCircle } from './disc';
-import { type MeshOptions, type SizeAt, basisAround, gradedPoints, unit3 } from './grading';
+import { BODY_PANEL_LIMIT, type MeshOptions, type SizeAt, basisAround, gradedPoints, unit3 } from './grading';
 
 const TAU = 2 * Math.PI;
 
@@ -27,7 +27,8 @@ export function addCylinder(
   const hAround = Math.min(cap, (TAU * radius) / opts.minSegments, sizeOnCircle(sizeAt, from, e1, e2, radius), sizeOnCircle(sizeAt, to, e1, e2, radius));
   const n = Math.max(opts.minSegments, Math.ceil((TAU * radius) / hAround - 1e-9));
   // Along: the target on the circle there, but panels at most maxAspect times longer than wide.
-  const longest = opts.maxAspect * ((TAU * radius) / n);
+  // (and never so short that a long thin wire gets more than BODY_PANEL_LIMIT panels).
+  const longest = Math.max(opts.maxAspect * ((TAU * radius) / n), (2 * n * length) / BODY_PANEL_LIMIT);
   const along = (t: number) => Math.min(cap, longest, sizeOnCircle(sizeAt, at(t), e1, e2, radius));
   const ts = gradedPoints(length, along, true, true, 2);
   const rings: { idx: number[]; offset: number }[] = [];

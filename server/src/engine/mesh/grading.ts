@@ -15,6 +15,12 @@ export interface MeshOptions {
   maxAspect: number;
 }
 
+/**
+ * Most panels the aspect limit may put on one thin body (a long fine wire or slender ring): beyond
+ * it, panels along the body grow longer instead, so meshing never runs away.
+ */
+export const BODY_PANEL_LIMIT = 100_000;
+
 export const DEFAULT_OPTIONS: MeshOptions = { relative: Infinity, minSegments: 12, maxAspect: 4 };
 
 /**

@@ -2,7 +2,7 @@
 // step so the panels are nearly equilateral. Every vertex lies on the true surface.
 import type { Vec3 } from '../../../../grammar/scene';
 import { MeshBuilder, zipRings } from './builder';
-import { type MeshOptions, REFINE_FACTOR, type SizeAt, basisAround, unit3 } from './grading';
+import { BODY_PANEL_LIMIT, type MeshOptions, REFINE_FACTOR, type SizeAt, basisAround, unit3 } from './grading';
 import { refineToSize } from './refine';
 
 const TAU = 2 * Math.PI;
@@ -74,7 +74,8 @@ function addTorusGrid(
 ): void {
   const nTube = Math.max(opts.minSegments, Math.ceil((TAU * minor) / h - 1e-9));
   // Around the major circle, measured on the ring of tube centres; at most maxAspect times the tube step.
-  const hMajor = Math.min(h, opts.maxAspect * ((TAU * minor) / nTube));
+  // (and never so short that a slender ring gets more than BODY_PANEL_LIMIT panels).
+  const hMajor = Math.min(h, Math.max(opts.maxAspect * ((TAU * minor) / nTube), (2 * nTube * TAU * major) / BODY_PANEL_LIMIT));
   let nMajor = Math.max(opts.minSegments, Math.ceil((TAU * major) / hMajor - 1e-9));
   if (nMajor % 2 === 1) nMajor++; // even, so the alternating half-step turns close up around the ring
   const rings: { idx: number[]; offset: number }[] = [];
