@@ -140,3 +140,22 @@ describe('axisymmetric solve: capacitance of bodies of revolution at default set
     expect(s.outlines[0].paths.length).toBe(2); // the profile and its mirror image
   });
 });
+
+describe('axisymmetric solve: the engine cache', () => {
+  it('reuses the factorization when only drives and free charges change, with the same figures as a fresh solve', () => {
+    // Reference: the same scene solved without a cache (and, for the charge, C = 4πε0·a·V, references.md).
+    const cache = { store: new Map<string, unknown>() };
+    const a = 0.05;
+    const shape = { kind: 'sphere' as const, center: [0, 0] as [number, number], radius: a, hollow: false };
+    const mesh = { kind: 'preset' as const, preset: 'coarse' as const };
+    solveAxisymmetric(axiScene([[shape, volts(1)]], { mesh }), { cache });
+    const edited = axiScene([[shape, volts(250)]], { mesh, charges: [{ kind: 'point', name: 'q', at: [0, 0.2], value: 1e-10, range: R0 }] });
+    const again = solveAxisymmetric(edited, { cache })!;
+    const fresh = solveAxisymmetric(edited)!;
+    expect(again.stats.timings.cached).toBe(1);
+    expect(fresh.stats.timings.cached).toBeUndefined();
+    expect(again.electrodes[0].charge).toBeCloseTo(fresh.electrodes[0].charge, 20);
+    // Sphere at V with a point charge q outside at distance d: Q = C0·a·V − q·a/d (superposition with the image charge, Jackson §2.2).
+    expect(rel(again.electrodes[0].charge, C0 * a * 250 - (1e-10 * a) / 0.2)).toBeLessThan(1e-4);
+  });
+});

@@ -15,7 +15,7 @@ import { EPSILON_0 } from '../../../../grammar/scene';
 import { insideElectrode } from '../../../../grammar/geometry';
 import { applyDrives, unchargedFloating } from '../drives';
 import { changeBetweenLevels, richardson, NO_ESTIMATE } from '../convergence';
-import { createSolver, denseOperator } from '../linear/solver';
+import { createSolver, denseOperator, type LinearSolver } from '../linear/solver';
 import type { SolveOptions } from '../index';
 import { SAFETY_CAUTION } from '../solve';
 import { sliceGrid as sliceDimensions } from '../evaluate';
@@ -30,7 +30,7 @@ import { buildTree, setDensities, treeEvaluate, type Tree2d } from './treecode2d
 type Scene2d = SceneAxisymmetric | ScenePlanar;
 
 /** The engine's SolveOptions (server/src/engine/index.ts), plus a mesh scale for tests. */
-export interface Solve2dOptions extends Pick<SolveOptions, 'maxPanels' | 'maxGridCells' | 'level' | 'convergence' | 'isCancelled'> {
+export interface Solve2dOptions extends Pick<SolveOptions, 'maxPanels' | 'maxGridCells' | 'level' | 'convergence' | 'isCancelled' | 'cache'> {
   /** Multiplies the element size (tests and coarse previews). */
   meshScale?: number;
 }
@@ -108,7 +108,23 @@ function elementsFor(setup: Space2d, h: number): Element2d[] {
   );
 }
 
-function solveLevel(setup: Space2d, scene: Scene2d, elements: Element2d[], eps: number, options: Solve2dOptions, timings: Record<string, number>, tag: string): Level | null {
+/** A factored level: what depends on the geometry alone, kept in the engine cache between solves. */
+interface Factored {
+  elements: Element2d[];
+  solver: LinearSolver;
+  size: number;
+  /** Solutions (τ, then the potential at infinity when it is an unknown) for each electrode at 1 V. */
+  solved: Float64Array[];
+}
+
+/** Most factored levels kept in the cache (each holds an N² matrix factorization). */
+const CACHE_ENTRIES = 4;
+
+function levelKey(setup: Space2d, h: number, k: number): string {
+  return JSON.stringify([setup.space, setup.mirror, setup.infinityUnknown, h, k, setup.pieces]);
+}
+
+function factorLevel(setup: Space2d, elements: Element2d[], k: number, options: Solve2dOptions, timings: Record<string, number>, tag: string): Factored | null {
   let t = performance.now();
   const n = elements.length;
   const a = assemble(elements, setup.kernel, setup.mirror, options.isCancelled);
@@ -125,31 +141,60 @@ function solveLevel(setup: Space2d, scene: Scene2d, elements: Element2d[], eps: 
       matrix[n * size + i] = setup.area(elements[i]) / setup.scale; // Σ q_j / (ε·scale)
     }
   }
-  const k = scene.electrodes.length;
   const rhs: Float64Array[] = [];
   for (let e = 0; e < k; e++) {
     const b = new Float64Array(size);
     for (let i = 0; i < n; i++) if (elements[i].electrode === e) b[i] = 1;
     rhs.push(b);
   }
+  // Dense LU throughout: 2d systems stay small (MAX_ELEMENTS_2D), one factorization serves every
+  // right-hand side (and later drive-only edits, through the cache), and the planar system's
+  // infinity row has a zero diagonal that Jacobi-preconditioned iterations handle poorly.
+  const solver = createSolver(denseOperator(size, matrix), 'dense-lu');
+  const solved = solver.solve(rhs, { isCancelled: options.isCancelled });
+  if (!solved) return null;
+  timings[`solve${tag}`] = performance.now() - t;
+  return { elements, solver, size, solved };
+}
+
+function solveLevel(setup: Space2d, scene: Scene2d, h: number, eps: number, options: Solve2dOptions, timings: Record<string, number>, tag: string): Level | null {
+  const k = scene.electrodes.length;
+  const store = options.cache?.store;
+  let cache = store?.get('2d') as Map<string, Factored> | undefined;
+  if (store && !cache) {
+    cache = new Map();
+    store.set('2d', cache);
+  }
+  const key = levelKey(setup, h, k);
+  let f = cache?.get(key) ?? null;
+  if (f && cache) {
+    // Most recently used last.
+    cache.delete(key);
+    cache.set(key, f);
+    timings[`cached${tag}`] = 1;
+  } else {
+    f = factorLevel(setup, elementsFor(setup, h), k, options, timings, tag);
+    if (!f) return null;
+    if (cache) {
+      cache.set(key, f);
+      while (cache.size > CACHE_ENTRIES) cache.delete(cache.keys().next().value as string);
+    }
+  }
+  const { elements, size } = f;
+  const n = elements.length;
   // Free charges with every electrode at 0 V: the conductors carry −(total free charge) when
   // infinity is an unknown (all the flux ends on them).
   const bFree = new Float64Array(size);
   const acc = new Float64Array(3);
   for (let i = 0; i < n; i++) {
     acc[0] = 0;
-    for (const f of setup.free) f.add(elements[i].mx, elements[i].my, false, acc, false);
+    for (const fr of setup.free) fr.add(elements[i].mx, elements[i].my, false, acc, false);
     bFree[i] = -acc[0];
   }
-  if (setup.infinityUnknown) bFree[n] = -setup.free.reduce((s, f) => s + f.total, 0) / (eps * setup.scale);
-  rhs.push(bFree);
-  // Dense LU throughout: 2d systems stay small (MAX_ELEMENTS_2D), each factorization serves every
-  // right-hand side, and the planar system's infinity row has a zero diagonal that Jacobi-preconditioned
-  // iterations handle poorly.
-  const solver = createSolver(denseOperator(size, matrix), 'dense-lu');
-  const solved = solver.solve(rhs, { isCancelled: options.isCancelled, tolerance: 1e-12 });
-  if (!solved) return null;
-  timings[`solve${tag}`] = performance.now() - t;
+  if (setup.infinityUnknown) bFree[n] = -setup.free.reduce((s, fr) => s + fr.total, 0) / (eps * setup.scale);
+  const freeSolved = f.solver.solve([bFree], { isCancelled: options.isCancelled });
+  if (!freeSolved) return null;
+  const solved = [...f.solved, freeSolved[0]];
   const units = solved.map((x) => x.subarray(0, n) as Float64Array);
   const infinity = solved.map((x) => (setup.infinityUnknown ? x[n] : 0));
   const areas = elements.map((el) => setup.area(el));
@@ -161,7 +206,7 @@ function solveLevel(setup: Space2d, scene: Scene2d, elements: Element2d[], eps: 
   const columns = units.slice(0, k).map(chargeOn);
   const C = Array.from({ length: k }, (_, i) => Array.from({ length: k }, (_, j) => columns[j][i]));
   const induced = chargeOn(units[k]);
-  return { elements, units, infinity, C, induced, solver: solver.name };
+  return { elements, units, infinity, C, induced, solver: f.solver.name };
 }
 
 interface Driven {
@@ -440,14 +485,12 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
   const levelCount = options.level === 'coarse' || options.convergence === false ? 1 : 2;
   // The coarse level doubles the element size; when that barely changes the count (a polyline
   // finer than the mesh), it is skipped and no convergence estimate is given.
-  const meshes = [elementsFor(setup, options.level === 'coarse' ? 2 * setup.h : setup.h)];
-  if (levelCount > 1) {
-    const coarseMesh = elementsFor(setup, 2 * setup.h);
-    if (coarseMesh.length < 0.8 * meshes[0].length) meshes.unshift(coarseMesh);
-  }
+  const hFine = options.level === 'coarse' ? 2 * setup.h : setup.h;
+  const hs = [hFine];
+  if (levelCount > 1 && elementsFor(setup, 2 * hFine).length < 0.8 * elementsFor(setup, hFine).length) hs.unshift(2 * hFine);
   const levels: Level[] = [];
-  for (let l = 0; l < meshes.length; l++) {
-    const level = solveLevel(setup, scene, meshes[l], eps, options, timings, l === meshes.length - 1 ? '' : 'Coarse');
+  for (let l = 0; l < hs.length; l++) {
+    const level = solveLevel(setup, scene, hs[l], eps, options, timings, l === hs.length - 1 ? '' : 'Coarse');
     if (!level) return null;
     levels.push(level);
   }
