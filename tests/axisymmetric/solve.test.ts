@@ -41,6 +41,24 @@ describe('axisymmetric solve: capacitance of bodies of revolution at default set
     expect(e.maxFieldAt[0]).toBeGreaterThan(0.98 * a);
   });
 
+  it('gives the conducting disc’s axial potential (2V/π)·arctan(a/z) and field (2V/π)·a/(a² + z²)', () => {
+    // Conducting disc at potential V, on its axis (Smythe, Static and Dynamic Electricity; Jackson,
+    // Classical Electrodynamics, problem 3.3 — from memory); near the face E → 2V/(πa), the face field.
+    const a = 0.1, V = 1000;
+    const heights = [0.5 * a, 0.02 * a];
+    const r = solveAxisymmetric(
+      axiScene([[{ kind: 'disc', center: [0, 0], radius: a }, volts(V)]], {
+        probes: heights.map((z, i) => ({ kind: 'point' as const, name: `p${i}`, at: [0, z] as [number, number], range: R0 })),
+      }),
+    )!;
+    heights.forEach((z, i) => {
+      const p = r.probes[i].points[0];
+      expect(rel(p.potential, ((2 * V) / Math.PI) * Math.atan(a / z))).toBeLessThan(1e-4);
+      expect(rel(p.field[1], ((2 * V) / Math.PI) * (a / (a * a + z * z)))).toBeLessThan(1e-3);
+      expect(Math.abs(p.field[0])).toBeLessThan(1e-9 * p.fieldMagnitude);
+    });
+  });
+
   it.each([
     // de Queiroz, "Capacitance Calculations" (references.md): a = 2, b = 1 in units of 4πε0.
     ['prolate', 2, 1, 1.3151907222],
