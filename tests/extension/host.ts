@@ -53,7 +53,7 @@ function freePort(): Promise<number> {
 }
 
 /** Starts code-server with the unpacked .vsix and a workspace holding `files`; resolves once it listens. */
-export async function startHost(vsix: string, files: Record<string, string>): Promise<Host> {
+export async function startHost(vsix: string, files: Record<string, string>, settings: Record<string, unknown> = {}): Promise<Host> {
   const base = join(OUT, 'run');
   rmSync(base, { recursive: true, force: true });
   const manifest = JSON.parse(readFileSync(join(ROOT, 'package.json'), 'utf8')) as { publisher: string; name: string; version: string };
@@ -64,7 +64,14 @@ export async function startHost(vsix: string, files: Record<string, string>): Pr
   mkdirSync(join(userData, 'User'), { recursive: true });
   writeFileSync(
     join(userData, 'User', 'settings.json'),
-    JSON.stringify({ 'security.workspace.trust.enabled': false, 'workbench.startupEditor': 'none', 'workbench.tips.enabled': false }),
+    JSON.stringify({
+      'security.workspace.trust.enabled': false,
+      'workbench.startupEditor': 'none',
+      'workbench.tips.enabled': false,
+      // The workspace sits inside the project's git tree: no offer to open that repository.
+      'git.openRepositoryInParentFolders': 'never',
+      ...settings,
+    }),
   );
   const workspace = join(base, 'workspace');
   mkdirSync(workspace, { recursive: true });
