@@ -207,6 +207,19 @@ describe('preview page on a solved sphere pair over a ground plane', () => {
     expect(Math.abs(y1 - (top + ((v1 - -0.08) / (v1 - v0)) * height))).toBeLessThan(0.5);
   });
 
+  it('offers both slices in the picker and redraws the chosen one', async () => {
+    const options = await page.locator('#slice-picker option').allTextContents();
+    expect(options).toEqual(['xz at y = 0 mm', 'xy at z = 0 mm']);
+    expect(await page.locator('svg.picture .axes text').allTextContents()).toContain('z (mm)');
+    await page.selectOption('#slice-picker', '1');
+    await page.waitForFunction(() => [...document.querySelectorAll('svg.picture .axes text')].some((t) => t.textContent === 'y (mm)'));
+    // The xy slice at z = 0 is above the ground plane (z = −80 mm): no ground trace there.
+    expect(await page.locator('svg.picture line.ground-line').count()).toBe(0);
+    expect(await page.locator('svg.picture path.contour').count()).toBeGreaterThan(5);
+    await page.selectOption('#slice-picker', '0');
+    await page.waitForFunction(() => document.querySelectorAll('svg.picture line.ground-line').length === 1);
+  });
+
   it('posts the clicked electrode of each sphere with its own statement range', async () => {
     for (const [u, name, index] of [[-0.06, 'left', 0], [0.06, 'right', 1]] as const) {
       const at = await clientPointOf(page, u, 0);

@@ -59,7 +59,7 @@ probe radial line from (60, 0, 0) mm to (200, 0, 0) mm samples 15
 `;
 export const SPHERE = { radius: 0.05, potential: 10e3, line: 4 };
 
-/** Two spheres of opposite potential above a ground plane, for the ground trace and per-electrode clicks. */
+/** Two spheres of opposite potential above a ground plane, for the ground trace, per-electrode clicks and the slice picker. */
 export const PAIR_SCENE = `scene "Sphere pair over ground"
 space 3d
 medium air
@@ -68,6 +68,7 @@ electrode left sphere center (-60, 0, 0) mm radius 25 mm potential 5 kV
 electrode right sphere center (60, 0, 0) mm radius 25 mm potential -5 kV
 ground plane at z = -80 mm
 slice xz at y = 0 from (-150, -100) mm to (150, 100) mm cells 72
+slice xy at z = 0 from (-150, -60) mm to (150, 60) mm cells 60
 `;
 
 /** Builds the preview bundle (client/webview/main.ts) as scripts/build.mjs does; returns the script and style text. */
