@@ -3,6 +3,7 @@ import { describe, expect, it } from 'vitest';
 import type { Charge3d } from '../../grammar/scene';
 import { EPSILON_0 } from '../../grammar/scene';
 import { createEngineCache, solveScene } from '../../server/src/engine/index';
+import type { Cache3d } from '../../server/src/engine/solve';
 import { electrode, R0, scene3d, sphere } from './scenes';
 
 const K = 1 / (4 * Math.PI * EPSILON_0); // Coulomb constant (references.md)
@@ -94,5 +95,23 @@ describe('free charges', () => {
     expect(rel(grounded.electrodes[0].charge, (-q * a) / d)).toBeLessThan(3e-3);
     const floating = solveScene(scene3d({ charges, electrodes: [electrode('s', sphere([0, 0, 0], a), { kind: 'floating' })] }), options)!;
     expect(rel(floating.electrodes[0].potential, (K * q) / d)).toBeLessThan(3e-3);
+  });
+
+  it('an edit of the free charges alone reuses the unit solutions (no new assembly), and the induced charge scales with it (linearity)', () => {
+    const cache = createEngineCache();
+    const options = { level: 'coarse', cache } as const;
+    const make = (q: number) =>
+      scene3d({
+        charges: [{ kind: 'point', name: 'q', at: [0, 0, 1.2], value: q, range: R0 }],
+        electrodes: [electrode('s', sphere([0, 0, 0], 0.5), { kind: 'potential', value: 0 })],
+      });
+    const first = solveScene(make(1e-9), options)!;
+    const store = cache.store.get('3d') as Cache3d;
+    const level = [...store.levels.values()][0];
+    const unit = level.unit;
+    const second = solveScene(make(-3e-9), options)!;
+    expect([...store.levels.values()][0]).toBe(level);
+    expect(level.unit).toBe(unit);
+    expect(Math.abs(second.electrodes[0].charge / first.electrodes[0].charge + 3)).toBeLessThan(1e-6);
   });
 });

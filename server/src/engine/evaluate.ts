@@ -8,7 +8,7 @@
 import { insideElectrode } from '../../../grammar/geometry';
 import type { Diagnostic, Scene3d, Slice } from '../../../grammar/scene';
 import { diagnostic } from '../../../grammar/diagnostics';
-import { potentialAndField, type FieldState3d } from './bem3d/field';
+import { addFreeCharges, potentialAndField, type FieldState3d } from './bem3d/field';
 import { INV_4PI } from './bem3d/system';
 import { FieldEvaluator } from './fast/field-evaluator';
 import { groundLines, sliceAxes, sliceOutlines } from './outlines';
@@ -123,11 +123,12 @@ export function evaluateSlices(
       });
       if (isCancelled?.()) return null;
       const panels = tree.evaluate(pts, 0.3);
-      const freeOnly: FieldState3d = { ...state, x: new Float64Array(state.sys.n) };
+      const free = new Float64Array(4);
       for (let m = 0; m < outside.length; m++) {
-        const f = state.charges.length > 0 ? potentialAndField(freeOnly, pts[3 * m], pts[3 * m + 1], pts[3 * m + 2], 'grid') : [0, 0, 0, 0];
-        f[0] += panels.potential[m];
-        for (let c = 0; c < 3; c++) f[1 + c] += panels.field[3 * m + c];
+        free.fill(0);
+        addFreeCharges(state, pts[3 * m], pts[3 * m + 1], pts[3 * m + 2], free);
+        const f = [panels.potential[m] + free[0], 0, 0, 0];
+        for (let c = 0; c < 3; c++) f[1 + c] = panels.field[3 * m + c] - free[1 + c];
         store(outside[m], f);
       }
     } else {

@@ -9,6 +9,9 @@ import { EPSILON_0 } from '../../../../grammar/scene';
 import { chargeGradient, chargePotential } from '../kernels/free-charges';
 import { reflect, type Image } from './images';
 import { surfacePotentialAndGradient, type Bem3dSystem, type EvalMode } from './system';
+// Fast-solver hook (owned by server/src/engine/fast/bem3d.ts): importing it registers the
+// hierarchical-matrix solver; large systems are evaluated by its treecode.
+import { fastPotentialAndGradient } from '../fast/bem3d';
 
 export interface FieldState3d {
   sys: Bem3dSystem;
@@ -22,24 +25,27 @@ export interface FieldState3d {
 /** [φ, Ex, Ey, Ez] at (x, y, z), in V and V/m. */
 export function potentialAndField(s: FieldState3d, x: number, y: number, z: number, mode: EvalMode = 'precise'): [number, number, number, number] {
   const out = new Float64Array(4);
-  surfacePotentialAndGradient(s.sys, s.x, x, y, z, out, mode);
-  let phi = out[0], gx = out[1], gy = out[2], gz = out[3];
-  if (s.charges.length > 0) {
-    const k = 1 / (4 * Math.PI * EPSILON_0 * s.permittivity);
-    const r = [0, 0, 0];
-    const g = new Float64Array(3);
-    for (const im of s.images) {
-      reflect(im, x, y, z, r);
-      for (const c of s.charges) {
-        phi += k * im.sign * chargePotential(c, r[0], r[1], r[2]);
-        chargeGradient(c, r[0], r[1], r[2], g);
-        gx += k * im.sign * im.flip[0] * g[0];
-        gy += k * im.sign * im.flip[1] * g[1];
-        gz += k * im.sign * im.flip[2] * g[2];
-      }
+  if (!fastPotentialAndGradient(s.sys, s.x, x, y, z, out, mode)) surfacePotentialAndGradient(s.sys, s.x, x, y, z, out, mode);
+  addFreeCharges(s, x, y, z, out);
+  return [out[0], -out[1], -out[2], -out[3]];
+}
+
+/** Adds the free charges' potential and its gradient (with images) at (x, y, z) to out[0..3] = [φ, ∂φ/∂x, ∂φ/∂y, ∂φ/∂z]. */
+export function addFreeCharges(s: FieldState3d, x: number, y: number, z: number, out: Float64Array): void {
+  if (s.charges.length === 0) return;
+  const k = 1 / (4 * Math.PI * EPSILON_0 * s.permittivity);
+  const r = [0, 0, 0];
+  const g = new Float64Array(3);
+  for (const im of s.images) {
+    reflect(im, x, y, z, r);
+    for (const c of s.charges) {
+      out[0] += k * im.sign * chargePotential(c, r[0], r[1], r[2]);
+      chargeGradient(c, r[0], r[1], r[2], g);
+      out[1] += k * im.sign * im.flip[0] * g[0];
+      out[2] += k * im.sign * im.flip[1] * g[1];
+      out[3] += k * im.sign * im.flip[2] * g[2];
     }
   }
-  return [phi, -gx, -gy, -gz];
 }
 
 /** Surface field magnitude per panel, V/m (the larger face's on thin sheets). */
