@@ -895,7 +895,13 @@ export function analyze(parsed: ParsedText, range: Range): Omit<Analysis, 'diagn
   const st: State = {
     space,
     lets,
-    ctx: { lets, allLetNames: new Set(statements.filter((s) => s.type === 'let' && s.name).map((s) => s.name!.text)), diagnostics, unitUse: new Map() },
+    ctx: {
+      lets,
+      allLetNames: new Set(statements.filter((s) => s.type === 'let' && s.name).map((s) => s.name!.text)),
+      otherNames: new Map(statements.filter((s) => (s.type === 'electrode' || s.type === 'charge' || s.type === 'probe') && s.name).map((s) => [s.name!.text, s.type])),
+      diagnostics,
+      unitUse: new Map(),
+    },
     symbols: [],
     symbolByName: new Map(),
     lengths: [],

@@ -41,6 +41,8 @@ export interface EvalContext {
   lets: ReadonlyMap<string, LetBinding>;
   /** Every let name of the file, so a forward use is told apart from a typo. */
   allLetNames: ReadonlySet<string>;
+  /** Names of electrodes, charges and probes, which have no value in expressions. */
+  otherNames: ReadonlyMap<string, string>;
   diagnostics: Diagnostic[];
   /** How often each unit is written, for suggestions of a likely unit. */
   unitUse: Map<string, number>;
@@ -109,6 +111,11 @@ function evaluateName(name: string, range: Range, ctx: EvalContext): EvalValue |
   }
   if (ctx.allLetNames.has(name)) {
     ctx.diagnostics.push(diagnostic('VS207', range, `'${name}' is used before its let; move the let above this line.`, { name }));
+    return null;
+  }
+  const other = ctx.otherNames.get(name);
+  if (other) {
+    ctx.diagnostics.push(diagnostic('VS206', range, `'${name}' is ${other === 'electrode' ? 'an' : 'a'} ${other}, not a let: only let names have a value in expressions.`, { name }));
     return null;
   }
   if (isUnitAtom(name)) {

@@ -61,7 +61,7 @@ const messages: IParserErrorMessageProvider = {
 
 class VscapeParser extends CstParser {
   constructor() {
-    super(T.allTokens, { recoveryEnabled: true, errorMessageProvider: messages, maxLookahead: 3 });
+    super(T.allTokens, { recoveryEnabled: true, errorMessageProvider: messages, maxLookahead: 1 });
     this.performSelfAnalysis();
   }
 

@@ -77,6 +77,11 @@ describe('suggestion data for quick fixes', () => {
     expect(checkDiagnostic('⟦electrod⟧ a sphere', 'VS104').data).toEqual({ replacement: 'electrode' });
   });
 
+  it('says when a name belongs to an electrode rather than a let', () => {
+    const d = checkDiagnostic('electrode top sphere center (0, 0, 0) radius 1 mm potential 1 kV\nlet v = ⟦top⟧ * 2', 'VS206');
+    expect(d.message).toContain('an electrode, not a let');
+  });
+
   it('lists every missing attribute', () => {
     expect(checkDiagnostic('electrode a ⟦torus⟧ center (0, 0, 0) floating', 'VS211').data).toEqual({ missing: ['axis', 'major', 'minor'] });
   });
