@@ -7,16 +7,14 @@
 // - bem3d/field.ts potentialAndField: imports this module and asks fastPotentialAndGradient first.
 import { registerBem3dOperator } from '../bem3d/operator';
 import { INV_4PI, type Bem3dSystem, type EvalMode } from '../bem3d/system';
-import { registerSolver, type LinearOperator, type LinearSolver } from '../linear/solver';
+import { FAST_MIN_UNKNOWNS, gmresSolver, registerSolver, type LinearOperator, type LinearSolver } from '../linear/solver';
 import type { FastSolver } from './fast-solver';
 import { FieldEvaluator } from './field-evaluator';
 import { buildPanelSolver } from './panel-solver';
 
 export const FAST_KIND = 'hmatrix-gmres';
-/** Above this many unknowns the H-matrix solver replaces dense GMRES (see scripts/bench-fast.ts). */
-export const FAST_MIN_UNKNOWNS = 2500;
-/** From this many panels, field evaluation goes through the treecode. */
-export const FAST_EVAL_MIN_PANELS = 2500;
+/** From this many panels, field evaluation goes through the treecode (the solver's threshold, linear/solver.ts). */
+export const FAST_EVAL_MIN_PANELS = FAST_MIN_UNKNOWNS;
 /** Opening angles: slices (about 1e-3 relative) and probes or surface fields (about 2e-5). */
 export const GRID_THETA = 0.5;
 export const PRECISE_THETA = 0.15;
@@ -38,7 +36,8 @@ export function fastOperator(sys: Bem3dSystem): FastOperator {
 /** GMRES on the H-matrix with its block-Jacobi preconditioner, warm-started when given an initial guess. */
 export function fastLinearSolver(op: LinearOperator): LinearSolver {
   const fast = (op as FastOperator).fast;
-  if (!fast) throw new Error(`${FAST_KIND} needs the operator built by fastOperator`);
+  // An operator from elsewhere (another space) has no H-matrix: plain GMRES on it.
+  if (!fast) return gmresSolver(op, 'dense-gmres');
   const solver: LinearSolver = {
     name: FAST_KIND,
     iterations: [],

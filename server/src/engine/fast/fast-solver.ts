@@ -12,7 +12,7 @@ export interface FastSolverOptions {
   leafSize: number;
   /** Admissibility η (default 1.5). */
   eta: number;
-  /** ACA tolerance per block (default 1e-7). */
+  /** ACA tolerance per block (default 1e-6). */
   eps: number;
   /** Most unknowns per preconditioner block (default 256). */
   blockSize: number;
@@ -22,7 +22,7 @@ export interface FastSolverOptions {
   restart: number;
 }
 
-export const DEFAULT_FAST_OPTIONS: FastSolverOptions = { leafSize: 32, eta: 1.5, eps: 1e-7, blockSize: 256, tol: 1e-9, restart: 60 };
+export const DEFAULT_FAST_OPTIONS: FastSolverOptions = { leafSize: 32, eta: 1.5, eps: 1e-6, blockSize: 256, tol: 1e-9, restart: 60 };
 
 /** Fills a list of blocks, possibly on several threads; returns them in any order. */
 export type BlockFiller = (tasks: BlockTask[], order: Int32Array, eps: number) => (DenseBlock | LowRankBlock)[];

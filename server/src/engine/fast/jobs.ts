@@ -23,10 +23,11 @@ export interface AssembleJob {
   chunk: number;
 }
 
-/** Blocks packed for the trip back: per block 6 header numbers, then its data. */
+/** Blocks packed for the trip back: per block 6 header numbers; dense data and low-rank factors. */
 export interface PackedBlocks {
   headers: Int32Array;
   data: Float64Array;
+  factors: Float32Array;
 }
 
 export function runAssemble(job: AssembleJob, P?: Panels): (DenseBlock | LowRankBlock)[] {
@@ -47,34 +48,38 @@ export function runAssemble(job: AssembleJob, P?: Panels): (DenseBlock | LowRank
 }
 
 export function packBlocks(blocks: (DenseBlock | LowRankBlock)[]): PackedBlocks {
-  let size = 0;
-  for (const b of blocks) size += isLowRank(b) ? b.U.length + b.V.length : b.data.length;
+  let size = 0, fsize = 0;
+  for (const b of blocks) {
+    if (isLowRank(b)) fsize += b.U.length + b.V.length;
+    else size += b.data.length;
+  }
   const headers = new Int32Array(6 * blocks.length);
   const data = new Float64Array(size);
-  let at = 0;
+  const factors = new Float32Array(fsize);
+  let at = 0, fat = 0;
   blocks.forEach((b, k) => {
     headers.set([b.r0, b.m, b.c0, b.n, isLowRank(b) ? b.rank : -1, 0], 6 * k);
     if (isLowRank(b)) {
-      data.set(b.U, at);
-      data.set(b.V, at + b.U.length);
-      at += b.U.length + b.V.length;
+      factors.set(b.U, fat);
+      factors.set(b.V, fat + b.U.length);
+      fat += b.U.length + b.V.length;
     } else {
       data.set(b.data, at);
       at += b.data.length;
     }
   });
-  return { headers, data };
+  return { headers, data, factors };
 }
 
 export function unpackBlocks(p: PackedBlocks): (DenseBlock | LowRankBlock)[] {
   const out: (DenseBlock | LowRankBlock)[] = [];
-  let at = 0;
+  let at = 0, fat = 0;
   for (let k = 0; k < p.headers.length / 6; k++) {
     const [r0, m, c0, n, rank] = p.headers.subarray(6 * k, 6 * k + 5);
     if (rank >= 0) {
-      const U = p.data.slice(at, at + rank * m);
-      const V = p.data.slice(at + rank * m, at + rank * (m + n));
-      at += rank * (m + n);
+      const U = p.factors.slice(fat, fat + rank * m);
+      const V = p.factors.slice(fat + rank * m, fat + rank * (m + n));
+      fat += rank * (m + n);
       out.push({ r0, m, c0, n, rank, U, V });
     } else {
       out.push({ r0, m, c0, n, data: p.data.slice(at, at + m * n) });

@@ -19,7 +19,7 @@ export function startFastWorker(): void {
     try {
       if (msg.kind === 'assemble') {
         const packed = packBlocks(runAssemble(msg));
-        port.postMessage({ headers: packed.headers, data: packed.data }, [packed.headers.buffer as ArrayBuffer, packed.data.buffer as ArrayBuffer]);
+        port.postMessage(packed, [packed.headers.buffer as ArrayBuffer, packed.data.buffer as ArrayBuffer, packed.factors.buffer as ArrayBuffer]);
       } else {
         runEvaluate(msg);
         port.postMessage({ ok: true });
