@@ -75,6 +75,9 @@ export const LU_MAX_UNKNOWNS = 400;
  */
 export const DENSE_MAX_UNKNOWNS = 6000;
 
+/** Fast-solver hook: above this size chooseSolver picks the hierarchical-matrix GMRES when registered. */
+export const FAST_MIN_UNKNOWNS = 2500;
+
 export interface SolverPreference {
   /** Force a method; 'auto' (default) lets chooseSolver decide. */
   kind?: SolverKind | 'auto';
@@ -86,6 +89,9 @@ export interface SolverPreference {
  */
 export function chooseSolver(n: number, preference: SolverPreference = {}): SolverKind {
   if (preference.kind && preference.kind !== 'auto') return preference.kind;
+  // Fast-solver hook (owned by server/src/engine/fast/bem3d.ts, which registers 'hmatrix-gmres'):
+  // above FAST_MIN_UNKNOWNS the hierarchical-matrix GMRES, once registered (scripts/bench-fast.ts).
+  if (n > FAST_MIN_UNKNOWNS && factories.has('hmatrix-gmres')) return 'hmatrix-gmres';
   return n <= LU_MAX_UNKNOWNS ? 'dense-lu' : 'dense-gmres';
 }
 
