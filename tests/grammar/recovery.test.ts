@@ -54,4 +54,19 @@ probe p point at (0, 0, 15) mm`;
     expect(analyzeText('let a = 5 *').diagnostics[0].message).toBe('Expected a value (a number, a name or a tuple) but found the end of the statement.');
     expect(analyzeText('electrode sphere center (0, 0, 0) radius 1 mm floating').diagnostics[0].message).toContain("'sphere', a reserved word");
   });
+
+  it('gives the same ranges for CRLF line ends and after a byte-order mark', () => {
+    const lf = 'let a = 1 kv\nlet b = 2 kv';
+    const ranges = (t: string) => analyzeText(t).diagnostics.map((d) => JSON.stringify(d.range));
+    expect(ranges(lf.replace('\n', '\r\n'))).toEqual(ranges(lf));
+    expect(ranges('\ufeff' + lf)[1]).toEqual(ranges(lf)[1]);
+  });
+
+  it('counts positions in UTF-16 code units, as LSP does, past wide characters', () => {
+    // An emoji is two UTF-16 code units.
+    const a = analyzeText('let a = 1 kv # 🔌🔌\nscene "⚡🔌 bench');
+    const at = (code: string) => a.diagnostics.find((d) => d.code === code)!.range;
+    expect(at('VS201')).toEqual({ start: { line: 0, character: 10 }, end: { line: 0, character: 12 } });
+    expect(at('VS102')).toEqual({ start: { line: 1, character: 6 }, end: { line: 1, character: 16 } });
+  });
 });
