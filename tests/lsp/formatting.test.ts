@@ -1,3 +1,6 @@
+import { readdirSync, readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { formatText, formatDocument } from '../../server/src/lsp/features/formatting';
 import { documentState } from '../../server/src/lsp/core';
@@ -69,5 +72,42 @@ describe('formatting', () => {
 
   it('changes nothing in formatted text', () => {
     expect(formatDocument(documentState('space 3d\nmedium air\n'))).toEqual([]);
+  });
+});
+
+describe('formatting, over the samples and random spacing', () => {
+  const root = join(__dirname, '../..');
+  const samples = readdirSync(join(root, 'samples')).filter((f) => f.endsWith('.vscape'));
+
+  it('formats every sample idempotently, changing only whitespace', () => {
+    expect(samples.length).toBeGreaterThan(0);
+    for (const f of samples) {
+      const text = readFileSync(join(root, 'samples', f), 'utf8');
+      const once = formatText(text);
+      expect(once, f).not.toBeNull();
+      expect(formatText(once!), f).toBe(once);
+      expect(once!.replace(/\s+/g, ''), f).toBe(text.replace(/\s+/g, ''));
+    }
+  });
+
+  it('gives the same text whatever the spacing between tokens (property, fast-check)', () => {
+    const text = readFileSync(join(root, 'samples', samples[0]), 'utf8');
+    const canonical = formatText(text)!;
+    // Re-space the canonical text: each run of spaces becomes 1–3 spaces, and a space is added
+    // after some '(' and before some ',' — never inside a word, a number or a unit.
+    fc.assert(
+      fc.property(fc.array(fc.integer({ min: 1, max: 3 }), { minLength: 64, maxLength: 64 }), (widths) => {
+        let k = 0;
+        const respace = (code: string) =>
+          code.replace(/ +/g, () => ' '.repeat(widths[k++ % widths.length])).replace(/\(/g, () => (widths[k++ % widths.length] === 2 ? '( ' : '('));
+        // Strings and comments are kept verbatim; only the code between them is re-spaced.
+        const respaced = canonical
+          .split('\n')
+          .map((line) => line.split(/("(?:[^"\\]|\\.)*"|#.*$)/).map((part, i) => (i % 2 === 1 ? part : respace(part))).join(''))
+          .join('\n');
+        expect(formatText(respaced)).toBe(canonical);
+      }),
+      { numRuns: 50 },
+    );
   });
 });
