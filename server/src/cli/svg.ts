@@ -229,6 +229,7 @@ function outlines(result: Result, f: Frame): string[] {
 
 function electrodeLabels(result: Result, f: Frame): string[] {
   const out: string[] = [];
+  const placed: { x: number; y: number; w: number }[] = [];
   for (const o of f.slice.outlines ?? []) {
     const name = result.electrodes[o.electrode]?.name;
     if (!name || o.paths.length === 0) continue;
@@ -248,6 +249,11 @@ function electrodeLabels(result: Result, f: Frame): string[] {
     if (!o.closed) y -= 9;
     x = Math.min(f.left + f.width - 20, Math.max(f.left + 20, x));
     y = Math.min(f.top + f.height - 6, Math.max(f.top + 12, y));
+    // Names that would overprint one another step down a line until they are clear.
+    const w = name.length * 6.5;
+    const clash = () => placed.some((p) => Math.abs(p.x - x) < (p.w + w) / 2 + 4 && Math.abs(p.y - y) < 13);
+    for (let tries = 0; tries < 4 && clash(); tries++) y += 14;
+    placed.push({ x, y, w });
     out.push(`<text class="electrode-name" x="${r1(x)}" y="${r1(y + 4)}" text-anchor="middle">${xml(name)}</text>`);
   }
   return out;
