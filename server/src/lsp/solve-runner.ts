@@ -1,6 +1,6 @@
-// Runs one solve job, level by level, on whatever thread calls it (the solve worker in the server;
-// the test's own thread in in-process tests). The engine cache passed in keeps meshes and
-// factorizations between jobs, so an edit that changes only a drive reuses the factorization.
+// Runs one solve job, level by level, on the thread that calls it (the solve worker). The engine
+// cache passed in keeps meshes and factorizations between jobs, so an edit that changes only a
+// drive reuses the factorization.
 import { solveScene, type EngineCache } from '../engine/index';
 import type { FromWorker, SolveJob } from './worker-messages';
 

@@ -6,10 +6,8 @@ import { existsSync } from 'node:fs';
 import { join } from 'node:path';
 import { Worker } from 'node:worker_threads';
 import type { Scene } from '../../../grammar/scene';
-import { createEngineCache } from '../engine/index';
 import type { Result } from '../engine/result';
 import type { SolveLevel } from '../protocol';
-import { runSolveJob } from './solve-runner';
 import type { FromWorker, SolveJob } from './worker-messages';
 
 export interface SolveRequest {
@@ -144,37 +142,20 @@ export class WorkerSolver implements Solver {
   }
 }
 
-/**
- * Solves on the calling thread, one job per event-loop turn: for in-process tests, and a fallback
- * when the worker bundle is missing. Cancellation works the same way, by generation.
- */
-export class InlineSolver implements Solver {
-  private generations = new Generations();
-  private cache = createEngineCache();
-  private nextId = 1;
-
-  solve(uri: string, request: SolveRequest, callbacks: SolveCallbacks): void {
-    const { slot, generation } = this.generations.advance(uri);
-    const job: SolveJob = { type: 'solve', id: this.nextId++, slot, generation, ...request };
-    const isCancelled = () => !this.generations.isCurrent(slot, generation);
-    setImmediate(() =>
-      runSolveJob(job, this.cache, isCancelled, (m) => {
-        if (m.type === 'result') {
-          if (!isCancelled()) callbacks.onResult(m.level, m.result, m.solveMs);
-        } else callbacks.onDone(isCancelled() ? 'cancelled' : m.state, m.message);
-      }),
-    );
+/** Used when the worker bundle is missing: solving on the server's own thread would block it, so it does not solve. */
+class UnavailableSolver implements Solver {
+  constructor(private readonly why: string) {}
+  solve(_uri: string, _request: SolveRequest, callbacks: SolveCallbacks): void {
+    callbacks.onDone('failed', this.why);
   }
-  cancel(uri: string): void {
-    this.generations.advance(uri);
-  }
+  cancel(): void {}
   dispose(): void {}
 }
 
-/** The worker next to this bundle (dist/solve-worker.js), or an in-thread solver when it is missing. */
+/** The worker next to this bundle (dist/solve-worker.js); without it nothing is solved (and the diagnostics say why). */
 export function createSolver(log: (message: string) => void): Solver {
   const path = join(__dirname, 'solve-worker.js');
   if (existsSync(path)) return new WorkerSolver(path, log);
-  log(`solve worker not found at ${path}; solving on the main thread`);
-  return new InlineSolver();
+  log(`solve worker not found at ${path}: live solving is off`);
+  return new UnavailableSolver(`the solve worker is missing (${path})`);
 }
