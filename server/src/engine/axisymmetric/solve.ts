@@ -44,7 +44,9 @@ export function elementSize(scene: { mesh: SceneAxisymmetric['mesh'] }, scale: n
 export function solveAxisymmetric(scene: SceneAxisymmetric, options: Solve2dOptions = {}): Result | null {
   const scale = characteristicLength(scene);
   const eps = EPSILON_0 * scene.medium.permittivity;
-  const pieces = scene.electrodes.flatMap((e, i) => profilePieces(e.shape, i, scale * 1e-9));
+  // Degenerate shapes (reported by the geometry checks) contribute no elements: zero or non-finite
+  // sizes, and profiles reaching r < 0 (a torus whose minor radius exceeds its major one).
+  const pieces = scene.electrodes.flatMap((e, i) => profilePieces(e.shape, i, scale * 1e-9)).filter((p) => usablePiece(p, -scale * 1e-9));
   // Only a plane normal to the axis keeps the symmetry; the first one is used.
   const plane = scene.groundPlanes.find((g) => g.axis === 'z');
   const mirror: Mirror | null = plane ? { axis: 1, at: plane.at } : null;
@@ -95,6 +97,20 @@ export function solveAxisymmetric(scene: SceneAxisymmetric, options: Solve2dOpti
     },
     options,
   );
+}
+
+/** A piece with a finite, positive length that stays at r ≥ rMin (rMin for the first coordinate; −∞ in planar). */
+export function usablePiece(p: Piece, rMin = -Infinity): boolean {
+  const numbers = [p.x0, p.y0, p.tx, p.ty, p.cx, p.cy, p.radius, p.theta0, p.length];
+  if (!numbers.every(Number.isFinite) || !(p.length > 0)) return false;
+  if (p.kind === 'line') return Math.min(p.x0, p.x0 + p.length * p.tx) >= rMin;
+  // The arc's smallest first coordinate: at an end, or at θ = π if the arc passes it.
+  const t1 = p.theta0 + (p.dir * p.length) / p.radius;
+  const lo = Math.min(p.theta0, t1);
+  const hi = Math.max(p.theta0, t1);
+  const passesPi = Math.floor((hi - Math.PI) / (2 * Math.PI)) !== Math.floor((lo - Math.PI) / (2 * Math.PI)) || hi - lo >= 2 * Math.PI;
+  const minX = passesPi ? p.cx - p.radius : Math.min(p.cx + p.radius * Math.cos(p.theta0), p.cx + p.radius * Math.cos(t1));
+  return minX >= rMin;
 }
 
 /** Image of opposite sign in the plane z = c: φ_img(p) = −φ(Mp), E_img = −M·E(Mp). */

@@ -7,7 +7,7 @@ import type { ScenePlanar } from '../../../../grammar/scene';
 import { EPSILON_0 } from '../../../../grammar/scene';
 import { characteristicLength } from '../../../../grammar/geometry';
 import type { Result } from '../result';
-import { elementSize } from '../axisymmetric/solve';
+import { elementSize, usablePiece } from '../axisymmetric/solve';
 import type { KernelAdd, Mirror } from './bem2d';
 import { outlinePieces } from './outline';
 import { solve2d, type FreeSource, type Solve2dOptions } from './solve2d';
@@ -35,7 +35,8 @@ export function solvePlanar(scene: ScenePlanar, options: Solve2dOptions = {}): R
   const scale = characteristicLength(scene);
   const eps = EPSILON_0 * scene.medium.permittivity;
   const kernel = lineChargeKernel(scale);
-  const pieces = scene.electrodes.flatMap((e, i) => outlinePieces(e.shape, i));
+  // Degenerate shapes (reported by the geometry checks) contribute no elements.
+  const pieces = scene.electrodes.flatMap((e, i) => outlinePieces(e.shape, i)).filter((p) => usablePiece(p));
   // A ground plane x = c or y = c (z = c lies in the scene's own plane and is meaningless here); the first one is used.
   const plane = scene.groundPlanes.find((g) => g.axis === 'x' || g.axis === 'y');
   const mirror: Mirror | null = plane ? { axis: plane.axis === 'x' ? 0 : 1, at: plane.at } : null;

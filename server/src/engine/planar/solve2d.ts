@@ -70,13 +70,18 @@ export interface Space2d {
 
 interface Level {
   elements: Element2d[];
-  /** Reduced densities τ = σ/ε per unit drive: one per electrode, then the free-charge solution. */
+  /**
+   * Reduced densities τ = σ/ε per unit drive: one per electrode, then the free-charge solution, then
+   * (planar without ground) one carrying a net charge of 1 C with every electrode at 0 V.
+   */
   units: Float64Array[];
   /** Potential at infinity of each unit solution (planar without ground), else 0. */
   infinity: number[];
   C: number[][];
   induced: number[];
   solver: string;
+  /** Charge on each electrode of a density vector. */
+  chargesOf(tau: Float64Array): number[];
 }
 
 /** An electrode's outline gets elements no larger than this fraction of its own size (half its box diagonal). */
@@ -147,11 +152,18 @@ function factorLevel(setup: Space2d, elements: Element2d[], k: number, options: 
     for (let i = 0; i < n; i++) if (elements[i].electrode === e) b[i] = 1;
     rhs.push(b);
   }
+  // Every electrode at 0 V with a net charge of ε·scale on the conductors (rescaled per coulomb later).
+  if (setup.infinityUnknown) {
+    const b = new Float64Array(size);
+    b[n] = 1;
+    rhs.push(b);
+  }
   // Dense LU throughout: 2d systems stay small (MAX_ELEMENTS_2D), one factorization serves every
   // right-hand side (and later drive-only edits, through the cache), and the planar system's
   // infinity row has a zero diagonal that Jacobi-preconditioned iterations handle poorly.
   const solver = createSolver(denseOperator(size, matrix), 'dense-lu');
-  const solved = solver.solve(rhs, { isCancelled: options.isCancelled });
+  // No elements: nothing to solve (and the planar infinity row would be empty).
+  const solved = n === 0 ? rhs.map((b) => new Float64Array(b.length)) : solver.solve(rhs, { isCancelled: options.isCancelled });
   if (!solved) return null;
   timings[`solve${tag}`] = performance.now() - t;
   return { elements, solver, size, solved };
@@ -192,9 +204,10 @@ function solveLevel(setup: Space2d, scene: Scene2d, h: number, eps: number, opti
     bFree[i] = -acc[0];
   }
   if (setup.infinityUnknown) bFree[n] = -setup.free.reduce((s, fr) => s + fr.total, 0) / (eps * setup.scale);
-  const freeSolved = f.solver.solve([bFree], { isCancelled: options.isCancelled });
+  const freeSolved = n === 0 ? [new Float64Array(size)] : f.solver.solve([bFree], { isCancelled: options.isCancelled });
   if (!freeSolved) return null;
-  const solved = [...f.solved, freeSolved[0]];
+  const solved = [...f.solved.slice(0, k), freeSolved[0]];
+  if (f.solved.length > k) solved.push(f.solved[k].map((x) => x / (eps * setup.scale)));
   const units = solved.map((x) => x.subarray(0, n) as Float64Array);
   const infinity = solved.map((x) => (setup.infinityUnknown ? x[n] : 0));
   const areas = elements.map((el) => setup.area(el));
@@ -206,7 +219,7 @@ function solveLevel(setup: Space2d, scene: Scene2d, h: number, eps: number, opti
   const columns = units.slice(0, k).map(chargeOn);
   const C = Array.from({ length: k }, (_, i) => Array.from({ length: k }, (_, j) => columns[j][i]));
   const induced = chargeOn(units[k]);
-  return { elements, units, infinity, C, induced, solver: f.solver.name };
+  return { elements, units, infinity, C, induced, solver: f.solver.name, chargesOf: chargeOn };
 }
 
 interface Driven {
@@ -227,24 +240,32 @@ function drive(level: Level, drives: Drive[], infinityUnknown: boolean): Driven 
   let potentials: number[];
   let charges: number[];
   let singular = false;
-  if (infinityUnknown && k > 0 && !drives.some((d) => d.kind === 'potential')) {
-    // Rows: Σ_j C_ij V_j = Q_i − q_f,i for every electrode, and Σ_j c_j V_j = −c_f (infinity at 0 V).
-    const rows: number[][] = level.C.map((row) => [...row]);
-    const b = drives.map((d, i) => (d.kind === 'charge' ? d.value : 0) - level.induced[i]);
+  let alpha = 0; // net charge carried by the conductors beyond what the Σq = 0 solutions allow
+  if (infinityUnknown && k > 0 && !drives.some((d) => d.kind === 'potential') && level.units.length > k + 1) {
+    // Every electrode floating or charge-driven: unknowns V_1..V_k and the net charge α, with
+    //   Σ_j C_ij V_j + α·q_N,i = Q_i − q_f,i  (each electrode's charge),
+    //   Σ_j c_j V_j + α·c_N = −c_f            (the potential at infinity is 0 V).
+    // With a nonzero net charge per metre the far potential really diverges; the figures are then
+    // relative to the log kernel's zero at the scene's length scale (docs/methods-2d.md).
+    const size = k + 1;
+    const a = new Float64Array(size * size);
+    const b = new Float64Array(size);
+    const net = chargeVector(level, k + 1);
     const cScale = Math.max(...level.C.map((r, i) => Math.abs(r[i])), 1e-300);
-    rows.push(level.infinity.slice(0, k).map((c) => c * cScale));
-    b.push(-level.infinity[k] * cScale);
-    // Normal equations of the (k+1)×k least-squares problem (small).
-    const ata = new Float64Array(k * k);
-    const atb = new Float64Array(k);
-    for (let r = 0; r <= k; r++) {
-      for (let i = 0; i < k; i++) {
-        atb[i] += rows[r][i] * b[r];
-        for (let j = 0; j < k; j++) ata[i * k + j] += rows[r][i] * rows[r][j];
-      }
+    for (let i = 0; i < k; i++) {
+      for (let j = 0; j < k; j++) a[i * size + j] = level.C[i][j];
+      a[i * size + k] = net[i];
+      const d = drives[i];
+      b[i] = (d.kind === 'charge' ? d.value : 0) - level.induced[i];
     }
-    potentials = solveSmall(k, ata, atb) ?? new Array<number>(k).fill(0);
-    charges = drives.map((_, i) => level.induced[i] + level.C[i].reduce((s, c, j) => s + c * potentials[j], 0));
+    for (let j = 0; j < k; j++) a[k * size + j] = level.infinity[j] * cScale;
+    a[k * size + k] = level.infinity[k + 1] * cScale;
+    b[k] = -level.infinity[k] * cScale;
+    const x = solveSmall(size, a, b);
+    if (!x) singular = true;
+    potentials = x ? x.slice(0, k) : new Array<number>(k).fill(0);
+    alpha = x ? x[k] : 0;
+    charges = drives.map((_, i) => level.induced[i] + alpha * net[i] + level.C[i].reduce((s, c, j) => s + c * potentials[j], 0));
   } else {
     const sol = applyDrives(level.C, level.induced, drives);
     potentials = sol.potentials;
@@ -253,16 +274,22 @@ function drive(level: Level, drives: Drive[], infinityUnknown: boolean): Driven 
   }
   const n = level.elements.length;
   const tau = new Float64Array(n);
-  let infinity = level.infinity[k];
-  for (let i = 0; i < n; i++) tau[i] = level.units[k][i];
-  for (let e = 0; e < k; e++) {
-    const v = potentials[e];
-    if (v === 0) continue;
-    const u = level.units[e];
-    for (let i = 0; i < n; i++) tau[i] += v * u[i];
-    infinity += v * level.infinity[e];
-  }
+  let infinity = level.infinity[k] ?? 0;
+  if (level.units[k]) tau.set(level.units[k]);
+  const add = (weight: number, index: number) => {
+    if (weight === 0) return;
+    const u = level.units[index];
+    for (let i = 0; i < n; i++) tau[i] += weight * u[i];
+    infinity += weight * level.infinity[index];
+  };
+  for (let e = 0; e < k; e++) add(potentials[e], e);
+  add(alpha, k + 1);
   return { potentials, charges, tau, infinity, singular };
+}
+
+/** Charge on each electrode of unit solution `index`. */
+function chargeVector(level: Level, index: number): number[] {
+  return level.chargesOf(level.units[index]);
 }
 
 /** Gaussian elimination with partial pivoting for a small dense system; null when singular. */
