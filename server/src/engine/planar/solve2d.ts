@@ -232,8 +232,9 @@ interface Driven {
 
 /**
  * Potentials and charges for the scene's drives. Planar without a ground plane and without any
- * electrode held at a potential: the potentials are fixed only up to a constant, which is chosen so
- * that the potential at infinity is 0 (least squares over the charge equations and that condition).
+ * electrode held at a potential: the potentials are fixed only up to a constant, chosen so that the
+ * potential at infinity (the constant c) is 0; a nonzero net charge enters through the net-charge
+ * solution.
  */
 function drive(level: Level, drives: Drive[], infinityUnknown: boolean): Driven {
   const k = drives.length;
