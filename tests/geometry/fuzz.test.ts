@@ -62,7 +62,7 @@ describe('geometry checks on arbitrary scenes', () => {
         const ba = checkGeometry(scene([[b, v0], [a, v1]])).map((x) => x.code);
         expect(ab).toEqual(ba);
       }),
-      { numRuns: 150 },
+      { numRuns: 80 },
     );
   });
 });

@@ -2,7 +2,7 @@
 // Lines along each axis are graded geometrically toward both ends (the box's edges and corners).
 import type { Vec3 } from '../../../../grammar/scene';
 import { MeshBuilder } from './builder';
-import { type MeshOptions, type SizeAt, gradedPoints } from './grading';
+import { DEFAULT_OPTIONS, type MeshOptions, type SizeAt, gradedPoints } from './grading';
 import type { Mesh } from './types';
 
 /** Grid coordinates along each axis for a box, following sizeAt over the surface. */
@@ -77,7 +77,7 @@ export function addBox(b: MeshBuilder, lines: number[][], electrode: number, thi
 /** A lone box mesh at a uniform target size h (graded toward edges), for tests and benchmarks. */
 export function boxMesh(center: Vec3, size: Vec3, h: number, hollow = false): Mesh {
   const b = new MeshBuilder();
-  const lines = boxLines(center, size, () => h, { relative: Infinity, minSegments: 1, maxAspect: 4 });
+  const lines = boxLines(center, size, () => h, { ...DEFAULT_OPTIONS, minSegments: 1 });
   addBox(b, lines, 0, hollow);
   return b.build();
 }

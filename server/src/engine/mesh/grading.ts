@@ -13,6 +13,8 @@ export interface MeshOptions {
   minSegments: number;
   /** Longest panel side over shortest, allowed where a curved body is much longer than it is thick. */
   maxAspect: number;
+  /** A guard against runaway sizes: beyond about this many panels the whole mesh is coarsened uniformly. */
+  maxPanels: number;
 }
 
 /**
@@ -21,7 +23,7 @@ export interface MeshOptions {
  */
 export const BODY_PANEL_LIMIT = 100_000;
 
-export const DEFAULT_OPTIONS: MeshOptions = { relative: Infinity, minSegments: 12, maxAspect: 4 };
+export const DEFAULT_OPTIONS: MeshOptions = { relative: Infinity, minSegments: 12, maxAspect: 4, maxPanels: 200_000 };
 
 /**
  * Grading toward edges (common practice for singular edge charge, cf. methods.md): the panel at an

@@ -26,8 +26,8 @@ export { boxMesh } from './box';
 export const PRESET_FACTOR = { coarse: 0.22, normal: 0.11, fine: 0.055 } as const;
 /** Fewest segments around any circle at each preset (a thin wire's cross-section). */
 export const PRESET_SEGMENTS = { coarse: 6, normal: 12, fine: 24 } as const;
-/** A guard against runaway sizes: beyond this many panels the whole mesh is coarsened uniformly. */
-export const MAX_PANELS = 200_000;
+/** The default guard against runaway sizes (MeshOptions.maxPanels). */
+export const MAX_PANELS = DEFAULT_OPTIONS.maxPanels;
 
 export interface MeshPlan {
   sizeAt: SizeAt;
@@ -58,6 +58,7 @@ export function meshPlan(scene: Scene3d, scale = 1): MeshPlan {
       relative: preset ? PRESET_FACTOR[preset] * scale : Infinity,
       minSegments: Math.max(4, Math.round(segments / scale)),
       maxAspect: DEFAULT_OPTIONS.maxAspect,
+      maxPanels: DEFAULT_OPTIONS.maxPanels,
     },
   };
 }
@@ -138,8 +139,8 @@ export function meshScene(scene: Scene3d, sizeAt: SizeAt, options: Partial<MeshO
     return h > 0 && Number.isFinite(h) ? h : fallback;
   };
   const estimate = estimatePanels(scene, safe);
-  if (estimate > MAX_PANELS) {
-    const k = Math.sqrt(estimate / MAX_PANELS);
+  if (estimate > opts.maxPanels) {
+    const k = Math.sqrt(estimate / opts.maxPanels);
     const inner = safe;
     safe = (x, y, z) => k * inner(x, y, z);
   }
