@@ -125,8 +125,9 @@ export class ServerCore {
     this.host.notify(SolveStatusNotification, { uri: state.uri, version, ...params });
   }
 
+  /** The picture is stale when the text has changed since and cannot be solved (it has errors). */
   private isStale(state: DocumentState): boolean {
-    return !!state.solved && state.solved.version !== state.document.version;
+    return !!state.solved && state.solved.version !== state.document.version && hasErrors(state.analysis.diagnostics);
   }
 
   private resultParams(state: DocumentState, solved: SolvedResult): ResultParams {
