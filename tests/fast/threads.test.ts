@@ -15,7 +15,7 @@ const GROUND = [
   { sign: 1, flip: [1, 1, 1], shift: [0, 0, 0] },
   { sign: -1, flip: [1, 1, -1], shift: [0, 0, -3] },
 ];
-const mesh = joinMeshes([icosphere(1, 3), boxSurface([1, 1, 1], 5, [2.5, 0, 0], 1)]);
+const mesh = joinMeshes([icosphere(1, 2), boxSurface([1, 1, 1], 6, [2.5, 0, 0], 1)]);
 const P = preparePanels(mesh);
 const sys = { vertices: mesh.vertices, triangles: mesh.triangles, points: mesh.centroid, scale: 1 / (4 * Math.PI * EPS0), images: GROUND };
 
