@@ -246,8 +246,8 @@ function group(ctx: Children): Expr | null {
   return { kind: 'group', items, range: extend(first, [...items.map((i) => i.range), close ? tokenRange(close) : null]) };
 }
 
-function value(ctx: Children | undefined): Value | null {
-  if (!ctx) return null;
+/** The value part of an attribute's children. */
+function value(ctx: Children): Value | null {
   const axisTok = tok(ctx, 'AxisWord');
   if (axisTok) {
     const axis = word(axisTok, 'axis')!;
@@ -262,7 +262,7 @@ function attribute(ctx: Children): Attribute | null {
   const nameTok = tok(ctx, 'FlagName') ?? tok(ctx, 'AttrName') ?? tok(ctx, 'Identifier');
   if (!nameTok) return null;
   const name = word(nameTok, 'attribute')!;
-  const v = value(node(ctx, 'value'));
+  const v = value(ctx);
   return { kind: 'attribute', name, value: v, range: spanRange(name.range, v?.range ?? name.range) };
 }
 
@@ -316,8 +316,7 @@ function statement(cst: CstNode): Statement | null {
       })
       .filter((e): e is Expr => !!e);
     const letValue = type === 'let' ? expression(node(inner, 'expression')) : null;
-    const attrsCtx = node(inner, 'attributes');
-    const attributes = attrsCtx ? nodes(attrsCtx, 'attribute').map(attribute).filter((a): a is Attribute => !!a) : [];
+    const attributes = nodes(inner, 'attribute').map(attribute).filter((a): a is Attribute => !!a);
     const range = extend(keyword.range, [name?.range, head?.range, title?.range, ...points.map((p) => p.range), letValue?.range, ...attributes.map((a) => a.range), ...toks(inner, 'Identifier').map(tokenRange), ...toks(inner, 'Equals').map(tokenRange), ...toks(inner, 'PlaneKw').map(tokenRange)]);
     return { kind: 'statement', type, keyword, name, head, title, points, value: letValue, attributes, range, broken: false };
   }

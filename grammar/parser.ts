@@ -100,13 +100,13 @@ class VscapeParser extends CstParser {
   private mediumStatement = this.RULE('mediumStatement', () => {
     this.CONSUME(T.MediumKw);
     this.OPTION(() => this.CONSUME(T.Identifier));
-    this.SUBRULE(this.attributes);
+    this.attributeList();
   });
 
   private meshStatement = this.RULE('meshStatement', () => {
     this.CONSUME(T.MeshKw);
     this.OPTION(() => this.CONSUME(T.PresetWord));
-    this.SUBRULE(this.attributes);
+    this.attributeList();
   });
 
   private letStatement = this.RULE('letStatement', () => {
@@ -121,44 +121,44 @@ class VscapeParser extends CstParser {
     this.CONSUME(T.Identifier);
     this.SUBRULE(this.shapeWord);
     this.MANY(() => this.SUBRULE(this.pointList));
-    this.SUBRULE(this.attributes);
+    this.attributeList();
   });
 
   private groundStatement = this.RULE('groundStatement', () => {
     this.CONSUME(T.GroundKw);
     this.CONSUME(T.PlaneKw);
-    this.SUBRULE(this.attributes);
+    this.attributeList();
   });
 
   private chargeStatement = this.RULE('chargeStatement', () => {
     this.CONSUME(T.ChargeKw);
     this.CONSUME(T.Identifier);
     this.SUBRULE(this.kindWord);
-    this.SUBRULE(this.attributes);
+    this.attributeList();
   });
 
   private sliceStatement = this.RULE('sliceStatement', () => {
     this.CONSUME(T.SliceKw);
     this.OPTION(() => this.CONSUME(T.PlaneWord));
-    this.SUBRULE(this.attributes);
+    this.attributeList();
   });
 
   private probeStatement = this.RULE('probeStatement', () => {
     this.CONSUME(T.ProbeKw);
     this.CONSUME(T.Identifier);
     this.SUBRULE(this.kindWord);
-    this.SUBRULE(this.attributes);
+    this.attributeList();
   });
 
   private limitStatement = this.RULE('limitStatement', () => {
     this.CONSUME(T.LimitKw);
-    this.SUBRULE(this.attributes);
+    this.attributeList();
   });
 
   private sweepStatement = this.RULE('sweepStatement', () => {
     this.CONSUME(T.SweepKw);
     this.CONSUME(T.Identifier);
-    this.SUBRULE(this.attributes);
+    this.attributeList();
   });
 
   /** A shape word; a plain name is accepted so analysis can suggest the right word. */
@@ -177,36 +177,34 @@ class VscapeParser extends CstParser {
     this.OPTION(() => this.CONSUME(T.Unit));
   });
 
-  private attributes = this.RULE('attributes', () => {
-    this.MANY(() => this.SUBRULE(this.attribute));
-  });
+  /** The attributes that end every statement (a helper, not a rule, to keep the tree shallow). */
+  private attributeList(): void {
+    this.MANY9(() => this.SUBRULE9(this.attribute));
+  }
 
-  /** `hollow`, `floating`, or `name value?`; an unknown name is accepted and reported by analysis. */
+  /** `hollow`, `floating`, or `name value?` where the value is an axis (`normal z`), an axis equation (`at y = 0`) or an expression. */
   private attribute = this.RULE('attribute', () => {
     this.OR([
       { ALT: () => this.CONSUME(T.FlagName) },
       {
         ALT: () => {
           this.OR2([{ ALT: () => this.CONSUME(T.AttrName) }, { ALT: () => this.CONSUME(T.Identifier) }]);
-          this.OPTION(() => this.SUBRULE(this.value));
+          this.OPTION(() =>
+            this.OR3([
+              {
+                ALT: () => {
+                  this.CONSUME(T.AxisWord);
+                  this.OPTION2(() => {
+                    this.CONSUME(T.Equals);
+                    this.SUBRULE(this.expression);
+                  });
+                },
+              },
+              { ALT: () => this.SUBRULE2(this.expression) },
+            ]),
+          );
         },
       },
-    ]);
-  });
-
-  /** An axis (`normal z`), an axis equation (`at y = 0`), or an expression. */
-  private value = this.RULE('value', () => {
-    this.OR([
-      {
-        ALT: () => {
-          this.CONSUME(T.AxisWord);
-          this.OPTION(() => {
-            this.CONSUME(T.Equals);
-            this.SUBRULE(this.expression);
-          });
-        },
-      },
-      { ALT: () => this.SUBRULE2(this.expression) },
     ]);
   });
 
