@@ -70,15 +70,23 @@ describe('voltscape solve on the lone-sphere sample', () => {
   const V = 10e3;
   const C = 4 * Math.PI * EPSILON_0 * a;
   let json: Record<string, any>;
+  let report = '';
   let svg = '';
+  let html = '';
 
+  // Two solves in all: one for the JSON, one for the report with both pictures.
   beforeAll(() => {
-    const out = join(work, 'sphere.svg');
-    const run = voltscape(['solve', 'samples/lone-sphere.vscape', '--json', '--svg', out]);
-    expect(run.code).toBe(0);
-    expectNoStackTrace(run.stderr);
-    json = JSON.parse(run.stdout);
-    svg = readFileSync(out, 'utf8');
+    const asJson = voltscape(['solve', 'samples/lone-sphere.vscape', '--json']);
+    expect(asJson.code).toBe(0);
+    expectNoStackTrace(asJson.stderr);
+    json = JSON.parse(asJson.stdout);
+    const [svgOut, htmlOut] = [join(work, 'sphere.svg'), join(work, 'sphere.html')];
+    const asReport = voltscape(['solve', 'samples/lone-sphere.vscape', '--svg', svgOut, '--html', htmlOut]);
+    expect(asReport.code).toBe(0);
+    expectNoStackTrace(asReport.stderr);
+    report = asReport.stdout;
+    svg = readFileSync(svgOut, 'utf8');
+    html = readFileSync(htmlOut, 'utf8');
   });
 
   it('prints JSON that matches the voltscape-result/1 contract', () => {
@@ -118,14 +126,19 @@ describe('voltscape solve on the lone-sphere sample', () => {
   });
 
   it('prints a readable report with units, the tables and the caution', () => {
-    const run = voltscape(['solve', 'samples/lone-sphere.vscape']);
-    expect(run.code).toBe(0);
-    expect(run.stdout).toContain('Voltscape report: Lone sphere, 50 mm radius, at 10 kV');
-    expect(run.stdout).toMatch(/ball\s+held at 10 kV\s+10 kV\s+5\d\.\d+ nC\s+5\.5\d+ pF/);
-    expect(run.stdout).toMatch(/Peak surface field[\s\S]*ball\s+0\.2\d* kV\/mm/);
-    expect(run.stdout).toContain('Capacitance matrix (Maxwell, pF');
-    expect(run.stdout).toMatch(/stored 2\d\d\.\d µJ/);
-    expect(run.stdout).toContain('High voltage kills: these figures are a design aid');
+    expect(report).toContain('Voltscape report: Lone sphere, 50 mm radius, at 10 kV');
+    expect(report).toMatch(/ball\s+held at 10 kV\s+10 kV\s+5\d\.\d+ nC\s+5\.5\d+ pF/);
+    expect(report).toMatch(/Peak surface field[\s\S]*ball\s+0\.2\d* kV\/mm/);
+    expect(report).toContain('Capacitance matrix (Maxwell, pF');
+    expect(report).toMatch(/stored 2\d\d\.\d µJ/);
+    expect(report).toContain('High voltage kills: these figures are a design aid');
+  });
+
+  it('writes the preview page as one HTML file under a nonce Content-Security-Policy, with the result as JSON data', () => {
+    expect(html).toMatch(/^<!DOCTYPE html>/);
+    expect(html).toMatch(/Content-Security-Policy" content="default-src 'none'; script-src 'nonce-/);
+    expect(html).toContain('<script type="application/json" id="voltscape-data">');
+    expect(html).toContain('voltscape-result/1');
   });
 });
 
@@ -203,18 +216,7 @@ describe('voltscape solve on a file with errors, and usage', () => {
   });
 });
 
-describe('the --html export and the lsp command', () => {
-  it('writes the preview page as one HTML file under a nonce Content-Security-Policy, with the result as JSON data', () => {
-    const out = join(work, 'sphere.html');
-    const run = voltscape(['solve', 'samples/lone-sphere.vscape', '--html', out]);
-    expect(run.code).toBe(0);
-    const html = readFileSync(out, 'utf8');
-    expect(html).toMatch(/^<!DOCTYPE html>/);
-    expect(html).toMatch(/Content-Security-Policy" content="default-src 'none'; script-src 'nonce-/);
-    expect(html).toContain('<script type="application/json" id="voltscape-data">');
-    expect(html).toContain('voltscape-result/1');
-  });
-
+describe('voltscape lsp', () => {
   it('starts the language server on stdio and answers initialize', async () => {
     const child = spawn(process.execPath, [cli, 'lsp', '--stdio'], { cwd: root });
     try {
