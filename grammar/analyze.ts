@@ -727,8 +727,7 @@ function analyzeElectrode(st: State, b: Builder, stmt: Statement) {
   if (spec.points) {
     points = [];
     for (const p of profilePoints(stmt.points)) {
-      const v = evalExpr(st, p);
-      const pt = v ? (convert(st, 'point', p, 'A profile point') as number[] | null) : null;
+      const pt = convert(st, 'point', p, 'A profile point') as number[] | null;
       if (!pt) points = null;
       else points?.push(pt);
     }

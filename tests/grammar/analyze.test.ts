@@ -130,6 +130,11 @@ ground plane at y = -40 mm`);
     expect(a.scene.slices).toEqual([]);
   });
 
+  it('counts each use of a let in a profile once', () => {
+    const a = clean('space axisymmetric\nlet w = 20 mm\nelectrode can revolve (0, 0) mm (w, 0) (w, w) (0, w) hollow floating');
+    expect(findSymbol(a.symbols, 'w')!.references).toHaveLength(4);
+  });
+
   it('lists sweeps apart from the Scene', () => {
     const a = analyzeText('let v = 1 kV\nsweep v from 1 kV to 9 kV steps 5');
     expect(a.sweeps).toEqual([expect.objectContaining({ name: 'v', from: 1000, to: 9000, steps: 5, dim: [0, 1, 0] })]);
