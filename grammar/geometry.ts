@@ -492,17 +492,44 @@ export function electrodeBounds(scene: Scene, i: number): Bounds {
   }
 }
 
+interface SolidElectrode {
+  index: number;
+  bounds: Bounds;
+  distance: (p: number[]) => number;
+}
+
+// Per-scene preparation for insideElectrode (a slice grid asks it for every cell). Scenes are
+// immutable plain data, so a weak cache keyed by the scene object is safe.
+const solidsOfScene = new WeakMap<Scene, SolidElectrode[]>();
+
+function solidsOf(scene: Scene): SolidElectrode[] {
+  let solids = solidsOfScene.get(scene);
+  if (!solids) {
+    solids = [];
+    for (let i = 0; i < scene.electrodes.length; i++) {
+      if (electrodeIsThin(scene, i)) continue;
+      const bounds = electrodeBounds(scene, i);
+      if (![...bounds.min, ...bounds.max].every(Number.isFinite)) continue;
+      const distance = scene.space === '3d' ? distanceFunction3d(scene.electrodes[i].shape) : (p: number[]) => electrodeDistance(scene, i, p);
+      solids.push({ index: i, bounds, distance });
+    }
+    solidsOfScene.set(scene, solids);
+  }
+  return solids;
+}
+
 /**
  * Index of the first electrode whose solid interior holds the point (within `tolerance` of its
  * surface counts as inside), or −1. Hollow shells and thin sheets have no interior.
  */
 export function insideElectrode(scene: Scene, point: number[], tolerance = 0): number {
-  for (let i = 0; i < scene.electrodes.length; i++) {
-    if (electrodeIsThin(scene, i)) continue;
-    const b = electrodeBounds(scene, i);
-    const q = scene.space === 'axisymmetric' ? [Math.abs(point[0]), point[1]] : point;
-    if (q.some((x, k) => x < b.min[k] - tolerance || x > b.max[k] + tolerance)) continue;
-    if (electrodeDistance(scene, i, point) <= tolerance) return i;
+  const q = scene.space === 'axisymmetric' ? [Math.abs(point[0]), point[1]] : point;
+  for (const solid of solidsOf(scene)) {
+    const b = solid.bounds;
+    let outside = false;
+    for (let k = 0; k < q.length && !outside; k++) outside = q[k] < b.min[k] - tolerance || q[k] > b.max[k] + tolerance;
+    if (outside) continue;
+    if (solid.distance(point) <= tolerance) return solid.index;
   }
   return -1;
 }
