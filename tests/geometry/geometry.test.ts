@@ -127,6 +127,22 @@ describe('scene questions', () => {
     expect(insideElectrode(scene, [0, 5, 0])).toBe(-1);
     expect(insideElectrode(scene, [2, 0, 0])).toBe(-1);
   });
+  it('agrees with the signed distances at random points (the prepared per-scene form)', () => {
+    const mixed = scene3d([
+      { kind: 'cylinder', from: [0, 0, 0], to: [1, 1, 0], radius: 0.3, hollow: false },
+      { kind: 'torus', center: [0, 0, 0], axis: [1, 0, 0], major: 0.6, minor: 0.2, hollow: false },
+      { kind: 'sphere', center: [0, 0, 0], radius: 0.5, hollow: true },
+      { kind: 'disc', center: [0, 0, 0.5], normal: [0, 0, 1], radius: 1 },
+    ]);
+    let seed = 11;
+    const rand = () => ((seed = (seed * 16807) % 2147483647) / 2147483647) * 3 - 1.5;
+    for (let k = 0; k < 500; k++) {
+      const p: Vec3 = [rand(), rand(), rand()];
+      const expected = [0, 1].find((i) => signedDistance3d(mixed.electrodes[i].shape, p) <= 0) ?? -1;
+      expect(insideElectrode(mixed, p)).toBe(expected);
+    }
+  });
+
   it('bounds the scene and takes half its largest side as its length', () => {
     expect(sceneBounds(scene)).toEqual({ min: [-1, -1, -1], max: [6, 6, 1] });
     expect(characteristicLength(scene)).toBeCloseTo(3.5, 14);
