@@ -5,7 +5,7 @@
 // VOLTSCAPE_EDITOR_TESTS=1; the package check below runs always.
 import { runTests } from '@vscode/test-electron';
 import { build } from 'esbuild';
-import { mkdirSync, rmSync, writeFileSync } from 'node:fs';
+import { mkdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { chromium, type Browser, type Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -61,7 +61,7 @@ if (!run) {
 
     beforeAll(async () => {
       mkdirSync(OUT, { recursive: true });
-      host = await startHost(vsix, { 'sphere.vscape': SPHERE, 'mistakes.vscape': MISTAKES });
+      host = await startHost(vsix, { 'sphere.vscape': SPHERE, 'mistakes.vscape': MISTAKES, 'notes.txt': 'Not a scene.\n' });
       browser = await chromium.launch({ executablePath: '/usr/bin/chromium', args: CHROMIUM_ARGS });
       page = await browser.newPage({ viewport: { width: 1600, height: 1000 } });
       await page.goto(host.url);
@@ -127,6 +127,30 @@ if (!run) {
       // The selection covers line 5, the `electrode ball` statement.
       await page.waitForFunction(() => /Ln 5, Col \d+ \(\d+ selected\)/.test(document.getElementById('status.editor.selection')?.textContent ?? ''), null, { timeout: 30_000 });
       expect(await page.locator('#status\\.editor\\.selection').textContent()).toMatch(/\(\d+ selected\)/);
+    });
+
+    it('saves the picture as SVG where the save dialog says', async () => {
+      const frame = await previewFrame(page);
+      await frame.click('#save-svg');
+      // VS Code's own save dialog (a path in a quick input here) proposes a name beside the scene.
+      const input = page.locator('.quick-input-widget input:visible').first();
+      await input.waitFor();
+      expect(await input.inputValue()).toMatch(/sphere-vscape\.svg$/);
+      await page.keyboard.press('Enter');
+      await page.locator('.notifications-toasts', { hasText: 'Voltscape: picture saved to' }).waitFor({ timeout: 30_000 });
+      const saved = readFileSync(join(host.workspace, 'sphere-vscape.svg'), 'utf8');
+      expect(saved.startsWith('<?xml')).toBe(true);
+      expect(saved).toContain('class="contour"');
+      expect(saved.trimEnd().endsWith('</svg>')).toBe(true);
+    });
+
+    it('shows the latest picture again after the panel was hidden and shown', async () => {
+      await page.locator('.tabs-container .tab[aria-label*="Field: sphere.vscape"]').click();
+      await openFromExplorer(page, 'notes.txt');
+      await page.locator('.tabs-container .tab[aria-label*="Field: sphere.vscape"]').click();
+      const frame = await previewFrame(page);
+      await frame.waitForFunction(() => document.querySelectorAll('#electrodes tbody tr').length === 2, null, { timeout: 60_000 });
+      expect(await frame.textContent('#electrodes tbody')).toContain('probe_ball');
     });
 
     it('follows the active scene editor', async () => {

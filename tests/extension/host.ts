@@ -109,8 +109,18 @@ export const hostAvailable = (): boolean => existsSync(hostEntry());
 
 /** Opens a workspace file from the Explorer and waits for its editor tab. */
 export async function openFromExplorer(page: Page, name: string): Promise<void> {
-  await page.locator('.explorer-folders-view .monaco-list-row', { hasText: name }).first().click();
-  await page.waitForSelector(`.tabs-container .tab[aria-label*="${name}"]`);
+  const row = page.locator('.explorer-folders-view .monaco-list-row', { hasText: name }).first();
+  const tab = page.locator(`.tabs-container .tab[aria-label*="${name}"]`).first();
+  // The Explorer may re-render under the pointer (a file appearing); click again if no tab follows.
+  for (let attempt = 0; ; attempt++) {
+    await row.click();
+    try {
+      await tab.waitFor({ timeout: 10_000 });
+      break;
+    } catch (error) {
+      if (attempt === 2) throw error;
+    }
+  }
   await page.locator('.editor-instance .monaco-editor .view-lines').first().waitFor();
 }
 
