@@ -113,7 +113,14 @@ function solveAt(scene: Scene3d, mesh: Mesh, key: string, images: Image[], o: So
   const capacitance = level.raw.map((row) => row.map((c) => eps * c));
   // Induced charge from the free charges: ε0·Σx·a, the same in every medium (x was solved for εr = 1).
   const induced = level.free ? level.free.induced.map((s) => EPSILON_0 * s) : new Array<number>(K).fill(0);
-  const drives = applyDrives(capacitance, induced, scene.electrodes.map((e) => e.drive));
+  // An electrode without panels (a degenerate shape, reported by the geometry checks) takes no part.
+  const meshed = new Uint8Array(K);
+  for (let j = 0; j < mesh.electrode.length; j++) meshed[mesh.electrode[j]] = 1;
+  const drives = applyDrives(
+    capacitance,
+    induced,
+    scene.electrodes.map((e, k) => (meshed[k] ? e.drive : { kind: 'potential', value: 0 })),
+  );
   const x = new Float64Array(level.sys.n);
   drives.potentials.forEach((v, k) => {
     if (v === 0) return;
