@@ -26,6 +26,7 @@ export { DIAGNOSTIC_CODES, hasErrors, diagnostic, type CodeInfo } from './diagno
 export { unitTable, dimensionOf, describeDim, siUnitOf, evaluateUnit, type Dim, type UnitAtom } from './units';
 export { findSymbol, symbolAt, type SymbolEntry, type SymbolKind, type SymbolTable } from './symbols';
 export { tokensOf, keywordWords, type SourceToken } from './lexer';
+export { parseText, clearParseCache, type ParsedText } from './parser';
 
 function documentRange(text: string): Range {
   let line = 0;
