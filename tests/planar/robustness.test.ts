@@ -52,3 +52,15 @@ describe('2d engines on scenes a user can type while editing', () => {
     expect(Math.abs(diff / ((lambda / (2 * Math.PI * EPSILON_0)) * Math.log(4)) - 1)).toBeLessThan(1e-12);
   });
 });
+
+describe('2d element limit', () => {
+  it('keeps the element count within maxPanels and says the mesh was coarsened (VS405)', () => {
+    // The engine's own limit (SolveOptions.maxPanels, server/src/engine/index.ts); the diagnostic code
+    // is the registry's (grammar/diagnostics.ts).
+    const shapes: [import('../../grammar/scene').ShapePlanar, ReturnType<typeof volts>][] = [];
+    for (let i = 0; i < 30; i++) shapes.push([{ kind: 'circle', center: [i * 0.5, 0], radius: 0.01, hollow: false }, volts(i % 2)]);
+    const r = solvePlanar(planarScene(shapes), { maxPanels: 400, convergence: false })!;
+    expect(r.stats.panels).toBeLessThanOrEqual(400);
+    expect(r.diagnostics.some((d) => d.code === 'VS405')).toBe(true);
+  });
+});

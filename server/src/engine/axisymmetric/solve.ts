@@ -30,15 +30,20 @@ export function ringArea(el: Element2d): number {
  * enlarged when the estimated element count would pass the limit (options.maxPanels, at most
  * MAX_ELEMENTS_2D).
  */
-export function elementSize(scene: { mesh: SceneAxisymmetric['mesh'] }, scale: number, pieces: Piece[], options: Solve2dOptions = {}): { h: number; coarsened: boolean } {
+export function elementSize(
+  scene: { mesh: SceneAxisymmetric['mesh'] },
+  scale: number,
+  pieces: Piece[],
+  options: Solve2dOptions = {},
+): { h: number; coarsened: boolean; maxElements: number } {
   let h = (scene.mesh.kind === 'size' ? scene.mesh.size : scale * AXISYMMETRIC_PRESETS[scene.mesh.preset]) * (options.meshScale ?? 1);
   if (!(h > 0) || !Number.isFinite(h)) h = scale * AXISYMMETRIC_PRESETS.normal;
   const total = pieces.reduce((s, p) => s + p.length, 0);
   const limit = Math.min(MAX_ELEMENTS_2D, options.maxPanels ?? MAX_ELEMENTS_2D);
   // Graded pieces carry up to π/2 more elements.
   const estimate = (1.6 * total) / h;
-  if (estimate <= limit) return { h, coarsened: false };
-  return { h: h * (estimate / limit), coarsened: true };
+  if (estimate <= limit) return { h, coarsened: false, maxElements: limit };
+  return { h: h * (estimate / limit), coarsened: true, maxElements: limit };
 }
 
 export function solveAxisymmetric(scene: SceneAxisymmetric, options: Solve2dOptions = {}): Result | null {

@@ -57,6 +57,8 @@ export interface Space2d {
   /** Element size of the reported (fine) level, and whether it was enlarged to fit the element limit. */
   h: number;
   coarsened: boolean;
+  /** Most elements at the fine level (the element size grows to fit). */
+  maxElements: number;
   /** Diagnostics the space raised while setting up (ignored ground planes...). */
   diagnostics: Diagnostic[];
   /** Charge per unit surface density: ∫2πr ds (axisymmetric) or the length (planar, per metre). */
@@ -89,9 +91,12 @@ const OWN_SIZE_FRACTION = 1 / 20;
 
 /**
  * Elements of size about h, and no larger than a twentieth of their electrode's own size (so a small
- * electrode in a large scene is still resolved); arcs get at least one element per 20°.
+ * electrode in a large scene is still resolved).
  */
 function elementsFor(setup: Space2d, h: number): Element2d[] {
+  // At most 20° of arc per element at the mesh size asked for; coarser levels (and meshes enlarged to
+  // fit the element limit) allow up to 50°.
+  const maxAngle = 0.35 * Math.min(2.5, Math.max(1, h / setup.h));
   const own = new Map<number, number>();
   for (const e of new Set(setup.pieces.map((p) => p.electrode))) {
     const q = new Float64Array(4);
@@ -109,7 +114,7 @@ function elementsFor(setup: Space2d, h: number): Element2d[] {
     own.set(e, 0.5 * Math.hypot(maxX - minX, maxY - minY) * OWN_SIZE_FRACTION * (h / setup.h));
   }
   return setup.pieces.flatMap((p) =>
-    splitPiece(p, Math.min(h, own.get(p.electrode) || h), p.kind === 'arc' ? Math.max(2, Math.ceil(p.length / (p.radius * 0.35))) : 1),
+    splitPiece(p, Math.min(h, own.get(p.electrode) || h), p.kind === 'arc' ? Math.max(2, Math.ceil(p.length / (p.radius * maxAngle))) : 1),
   );
 }
 
@@ -513,7 +518,14 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
   const levelCount = options.level === 'coarse' || options.convergence === false ? 1 : 2;
   // The coarse level doubles the element size; when that barely changes the count (a polyline
   // finer than the mesh), it is skipped and no convergence estimate is given.
-  const hFine = options.level === 'coarse' ? 2 * setup.h : setup.h;
+  let hFine = options.level === 'coarse' ? 2 * setup.h : setup.h;
+  // Enforce the element limit on the actual count (the size estimate cannot see per-electrode limits).
+  let coarsened = setup.coarsened;
+  for (let count = elementsFor(setup, hFine).length, i = 0; count > setup.maxElements && i < 6; i++) {
+    hFine *= (1.05 * count) / setup.maxElements;
+    count = elementsFor(setup, hFine).length;
+    coarsened = true;
+  }
   const hs = [hFine];
   if (levelCount > 1 && elementsFor(setup, 2 * hFine).length < 0.8 * elementsFor(setup, hFine).length) hs.unshift(2 * hFine);
   const levels: Level[] = [];
@@ -605,7 +617,7 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
   }
   timings.slices = performance.now() - t;
 
-  postSolveDiagnostics(scene, setup, electrodes, dFine.singular, diagnostics);
+  postSolveDiagnostics(scene, { ...setup, coarsened }, electrodes, dFine.singular, diagnostics);
   const names = scene.electrodes.map((e) => e.name);
   let asym = 0;
   let diag = 0;
