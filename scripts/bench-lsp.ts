@@ -39,6 +39,8 @@ function numberIn(e: Expr | null, statements: Statement[], depth = 0): Extract<E
   if (e.kind === 'number') return e.value !== 0 ? e : null;
   if (e.kind === 'unit') return numberIn(e.operand, statements, depth);
   if (e.kind === 'unary') return numberIn(e.operand, statements, depth);
+  // `swing / 2`, `2 * gap`: changing either factor changes the whole.
+  if (e.kind === 'binary' && (e.op === '*' || e.op === '/')) return numberIn(e.left, statements, depth) ?? numberIn(e.right, statements, depth);
   if (e.kind === 'name') {
     const definition = statements.find((s) => s.type === 'let' && s.name?.text === e.name);
     return definition ? numberIn(definition.value, statements, depth + 1) : null;
@@ -148,14 +150,15 @@ async function benchSample(client: LspClient, file: string): Promise<Row> {
 
   for (const kind of ['geometry', 'drive'] as const) {
     const started = performance.now();
+    const base = target(text, kind)?.value;
     for (let k = 0; k < edits && performance.now() - started < BUDGET_MS; k++) {
       const t = target(text, kind);
-      if (!t) {
+      if (!t || base === undefined) {
         row.note += `${row.note ? '; ' : ''}no ${kind} edit found`;
         break;
       }
-      // Alternate the value by ±1 % so the geometry keeps moving.
-      const value = Number((t.value * (k % 2 === 0 ? 1.01 : 1 / 1.01)).toPrecision(8));
+      // A new value every time (+1 %, +2 %...), so no edit finds its geometry or drives already solved.
+      const value = Number((base * (1 + 0.01 * (k + 1))).toPrecision(8));
       const mark = client.received.length;
       const start = performance.now();
       version++;
