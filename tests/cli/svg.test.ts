@@ -136,3 +136,14 @@ describe('outlines cut from the scene when the solve gives none', () => {
     expect(groundTraces(scene, sphereSlice())).toEqual([[-0.4, -0.25, 0.4, -0.25]]);
   });
 });
+
+describe('the far side of a ground plane', () => {
+  it('is veiled on the side without conductors', () => {
+    // The fixture's ground trace runs at v = −0.25 m; the sphere sits above it, so the strip below is veiled.
+    const svg = renderSvg({ title: 'veil', result: sphereResult() });
+    const veil = parseXml(svg).find((e) => e.attributes.class === 'beyond-ground');
+    expect(veil).toBeDefined();
+    // 620 px for 0.8 m: the 0.05 m strip below the plane is 38.75 px high, at the bottom of the plot.
+    expect(Number(veil!.attributes.height)).toBeCloseTo(38.8, 0);
+  });
+});

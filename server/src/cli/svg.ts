@@ -135,10 +135,12 @@ function renderPanel(result: Result, slice: SliceResult, index: number, plan: Le
   out.push(`<defs><clipPath id="${clipId}"><rect x="${r1(f.left)}" y="${r1(f.top)}" width="${r1(f.width)}" height="${r1(f.height)}"/></clipPath></defs>`);
   out.push(`<g clip-path="url(#${clipId})" class="bands">`);
   out.push(...bandsAndLines(f, plan));
+  const veils = veilBeyondGround(f);
+  out.push(...veilSvg(veils));
   out.push(...groundTraces(f));
   out.push(...outlines(result, f));
   out.push('</g>');
-  out.push(...levelLabels(f, plan));
+  out.push(...levelLabels(f, plan, veils));
   out.push(...electrodeLabels(result, f));
   out.push(`<rect x="${r1(f.left)}" y="${r1(f.top)}" width="${r1(f.width)}" height="${r1(f.height)}" fill="none" stroke="${INK}" stroke-width="1"/>`);
   out.push(...axes(f, uName, vName));
@@ -186,6 +188,45 @@ function bandsAndLines(f: Frame, plan: LevelPlan): string[] {
     lines.push(`<path class="equipotential" data-level="${level}" d="${d}" fill="none" stroke="${INK}" stroke-opacity="0.55" stroke-width="0.8"/>`);
   });
   return out.concat(lines);
+}
+
+/**
+ * Beyond a ground plane there is no field (the plane is a conductor); the grid there holds the
+ * image charges' mirror values, so that side is veiled. The live side is the one holding more
+ * conductor cells, or the larger one when the slice shows no conductor.
+ */
+function veilBeyondGround(f: Frame): [number, number, number, number][] {
+  const s = f.slice;
+  const out: [number, number, number, number][] = [];
+  const [u1, v1] = [s.u0 + s.nu * s.du, s.v0 + s.nv * s.dv];
+  for (const [a0, b0, a1, b1] of s.groundLines ?? []) {
+    const horizontal = Math.abs(b1 - b0) < 1e-12 * (v1 - s.v0);
+    const vertical = Math.abs(a1 - a0) < 1e-12 * (u1 - s.u0);
+    if (!horizontal && !vertical) continue;
+    const cut = horizontal ? b0 : a0;
+    let below = 0;
+    let above = 0;
+    for (let j = 0; j < s.nv; j++) {
+      for (let i = 0; i < s.nu; i++) {
+        if ((s.inside?.[j * s.nu + i] ?? -1) < 0) continue;
+        const c = horizontal ? s.v0 + (j + 0.5) * s.dv : s.u0 + (i + 0.5) * s.du;
+        if (c < cut) below++;
+        else above++;
+      }
+    }
+    const [lo, hi] = horizontal ? [s.v0, v1] : [s.u0, u1];
+    const veilLow = below === above ? cut - lo < hi - cut : below < above;
+    const [from, to] = veilLow ? [lo, cut] : [cut, hi];
+    if (to - from <= 0) continue;
+    const [x0, y0] = horizontal ? toPx(f, s.u0, to) : toPx(f, from, v1);
+    const [x1, y1] = horizontal ? toPx(f, u1, from) : toPx(f, to, s.v0);
+    out.push([Math.min(x0, x1), Math.min(y0, y1), Math.abs(x1 - x0), Math.abs(y1 - y0)]);
+  }
+  return out;
+}
+
+function veilSvg(veils: [number, number, number, number][]): string[] {
+  return veils.map(([x, y, w, h]) => `<rect class="beyond-ground" x="${r1(x)}" y="${r1(y)}" width="${r1(w)}" height="${r1(h)}" fill="#e7e2d6"/>`);
 }
 
 function groundTraces(f: Frame): string[] {
@@ -260,7 +301,7 @@ function electrodeLabels(result: Result, f: Frame): string[] {
 }
 
 /** One label per level, at a point of its longest line away from the plot's border; overlapping labels are dropped. */
-function levelLabels(f: Frame, plan: LevelPlan): string[] {
+function levelLabels(f: Frame, plan: LevelPlan, veils: [number, number, number, number][]): string[] {
   const s = f.slice;
   if (plan.levels.length === 0 || s.nu < 2 || s.nv < 2) return [];
   const grid = clampedGrid(s, plan);
@@ -278,6 +319,7 @@ function levelLabels(f: Frame, plan: LevelPlan): string[] {
       const frac = (0.3 + 0.17 * k + step) % 1;
       const [gx, gy] = inner[Math.floor(frac * (inner.length - 1))];
       const [x, y] = gridToPx(f, gx, gy);
+      if (veils.some(([vx, vy, vw, vh]) => x >= vx && x <= vx + vw && y >= vy - 6 && y <= vy + vh + 6)) continue;
       if (placed.some(([px, py]) => Math.abs(px - x) < 46 && Math.abs(py - y) < 14)) continue;
       placed.push([x, y]);
       out.push(`<text class="level" x="${r1(x)}" y="${r1(y + 3)}" text-anchor="middle">${xml(formatQuantity(plan.levels[k], 'potential', { digits: 2 }))}</text>`);
