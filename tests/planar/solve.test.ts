@@ -115,7 +115,7 @@ describe('planar solve: per-metre figures of cross-sections', () => {
       planarScene([
         [{ kind: 'strip', from: [-w / 2, 0], to: [w / 2, 0] }, volts(1)],
         [{ kind: 'circle', center: [0, 0], radius: R, hollow: true }, volts(0)],
-      ]),
+      ], { mesh: { kind: 'preset', preset: 'coarse' } }),
     )!;
     expect(rel(res.electrodes[0].capacitance, TWO_PI_EPS / Math.log(R / (w / 4)))).toBeLessThan(2e-4);
     expect(res.electrodes[0].maxFieldOnEdge).toBe(true);
@@ -134,7 +134,7 @@ describe('planar solve: per-metre figures of cross-sections', () => {
       planarScene([
         [{ kind: 'rect', center: [0, 0], size: [s, s], hollow: false }, volts(1)],
         [{ kind: 'circle', center: [0, 0], radius: R, hollow: true }, volts(0)],
-      ]),
+      ], { mesh: { kind: 'preset', preset: 'coarse' } }),
     )!;
     expect(rel(res.electrodes[0].capacitance, TWO_PI_EPS / Math.log(R / capacity))).toBeLessThan(5e-4);
   });
