@@ -101,14 +101,21 @@ interface LevelOutcome {
   /** Peak surface field per electrode: value and panel index (−1 if it has no panels). */
   peak: { value: number; panel: number }[];
   singular: boolean;
+  /** Milliseconds spent on this level in this solve (empty when everything came from the cache). */
+  timings: Record<string, number>;
 }
 
 function solveAt(scene: Scene3d, mesh: Mesh, key: string, images: Image[], o: Solve3dOptions): LevelOutcome | null {
   const eps = EPSILON_0 * scene.medium.permittivity;
   const K = scene.electrodes.length;
   const cached = o.cache.levels.get(key) ?? null;
+  const freeBefore = cached?.free ?? null;
   const level = solveLevel(scene, mesh, images, cached, { kind: o.solver, isCancelled: o.isCancelled });
   if (!level) return null;
+  // Timings of this solve only: nothing for work reused from the cache.
+  const timings: Record<string, number> = {};
+  if (!cached) Object.assign(timings, level.timings);
+  else if (level.free && level.free !== freeBefore && level.timings.freeSolve !== undefined) timings.freeSolve = level.timings.freeSolve;
   remember(o.cache.levels, key, level, 4);
   const capacitance = level.raw.map((row) => row.map((c) => eps * c));
   // Induced charge from the free charges: ε0·Σx·a, the same in every medium (x was solved for εr = 1).
@@ -151,6 +158,7 @@ function solveAt(scene: Scene3d, mesh: Mesh, key: string, images: Image[], o: So
     field,
     peak,
     singular: drives.singular,
+    timings,
   };
 }
 
@@ -249,7 +257,8 @@ export function solve3d(scene: Scene3d, o: Solve3dOptions): Result | null {
   timings.solve = performance.now() - t;
   const fine = outcomes[outcomes.length - 1];
   const coarse = outcomes.length > 1 && outcomes[0].panels < fine.panels ? outcomes[0] : null;
-  Object.assign(timings, Object.fromEntries(Object.entries(fine.level.timings).map(([k, v]) => [`fine.${k}`, v])));
+  Object.assign(timings, Object.fromEntries(Object.entries(fine.timings).map(([k, v]) => [`fine.${k}`, v])));
+  if (coarse) Object.assign(timings, Object.fromEntries(Object.entries(coarse.timings).map(([k, v]) => [`coarse.${k}`, v])));
   if (coarsened) {
     diagnostics.push(
       diagnostic('VS405', ZERO_RANGE, `Mesh coarsened to ${fine.panels} panels to stay within the panel limit; figures are less accurate than the mesh setting asks.`),
@@ -296,6 +305,8 @@ export function solve3d(scene: Scene3d, o: Solve3dOptions): Result | null {
 
   t = performance.now();
   const W = energy(scene, fine, images);
+  timings.energy = performance.now() - t;
+  t = performance.now();
   const probes = evaluateProbes(scene, fine.state, fine.potentials);
   timings.probes = performance.now() - t;
   t = performance.now();
