@@ -115,6 +115,8 @@ function render(): void {
       htmlEl('li', {}, notesEl, 'Field lines on a slice of a 3d scene follow only the field components in the slice plane.');
     }
   }
+  // What the solve itself reported (field limits, mesh warnings), with its code.
+  for (const d of result.diagnostics) htmlEl('li', { class: `diagnostic ${d.severity}` }, notesEl, `${d.code}: ${d.message}`);
   for (const probe of result.probes) {
     if (probe.points.length < 2) continue;
     const box = htmlEl('figure', { class: 'plot' }, plotsEl);

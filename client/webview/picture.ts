@@ -124,6 +124,11 @@ function drawLegend(g: SVGGElement, f: Frame, scale: Scale, palette: Palette, ex
   const x = f.left + f.width + 22;
   const top = f.top + 18;
   svgEl('text', { x: px(x), y: px(f.top + 6), 'font-size': 12, 'font-weight': 600, fill: palette.foreground }, g, scale.title);
+  if (scale.levels.length === 0) {
+    // Nothing varies enough on this slice to draw levels.
+    svgEl('text', { x: px(x), y: px(top + 12), 'font-size': 10.5, fill: palette.foreground }, g, 'no levels: uniform here');
+    return;
+  }
   const n = scale.levels.length + 1;
   const h = Math.min(22, Math.max(10, (f.height - 60) / n));
   const mids: number[] = [];
