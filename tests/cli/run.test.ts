@@ -73,7 +73,7 @@ describe('arguments', () => {
     expect(parseArgs(['lsp'])).toMatchObject({ kind: 'usage' });
   });
   it('accepts a file named like an option after --', () => {
-    expect(parseArgs(['check', '--', '-odd.vscape'])).toEqual({ kind: 'check', files: ['-odd.vscape'] });
+    expect(parseArgs(['check', '--', '-odd.vscape'])).toMatchObject({ kind: 'check', files: ['-odd.vscape'] });
   });
 });
 
@@ -202,7 +202,7 @@ describe('help, version and usage', () => {
   it('prints help and the version with exit 0', async () => {
     const h = harness();
     expect(await h.run(['--help'])).toBe(EXIT_CLEAN);
-    expect(h.stdout()).toContain('voltscape check FILE...');
+    expect(h.stdout()).toMatch(/voltscape check .*FILE\.\.\./);
     const v = harness();
     expect(await v.run(['--version'])).toBe(EXIT_CLEAN);
     expect(v.stdout()).toBe('voltscape 9.9.9\n');
