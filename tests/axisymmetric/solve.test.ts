@@ -83,6 +83,8 @@ describe('axisymmetric solve: capacitance of bodies of revolution at default set
     expect(rel(-r.capacitance.matrix[1][0], C)).toBeLessThan(1e-4);
     expect(rel(r.electrodes[0].maxField, (U * Ro) / (ri * (Ro - ri)))).toBeLessThan(1e-4);
     expect(rel(r.electrodes[1].charge, -C * U)).toBeLessThan(1e-4);
+    // The hollow shell's inner face sees U·r/(R(R − r)) (same closed form at radius R); its outer face none.
+    expect(rel(r.electrodes[1].maxField, (U * ri) / (Ro * (Ro - ri)))).toBeLessThan(1e-4);
   });
 
   it.each([
@@ -109,6 +111,8 @@ describe('axisymmetric solve: capacitance of bodies of revolution at default set
       }),
     )!;
     expect(rel(r.electrodes[0].charge, (-q * a) / d)).toBeLessThan(1e-4);
+    // Energy: the charge's interaction with its image q′ = −qa/d at a²/d, W = −½·kq²a/(d² − a²) (same source).
+    expect(rel(r.energy, (-0.5 * q * q * a) / (C0 * (d * d - a * a)))).toBeLessThan(1e-4);
   });
 
   it('solves a floating sphere around a ring charge to the potential of its charge, kQ/a', () => {
