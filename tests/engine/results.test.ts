@@ -68,6 +68,25 @@ describe('slices', () => {
     });
   });
 
+  it('behind a ground plane the grid and probes read 0 V and no field (the plane screens it)', () => {
+    const s = scene3d({ mesh: small, electrodes: [electrode('s', sphere([0, 0, 0.5], 0.3), { kind: 'potential', value: 100 })], ground: [{ axis: 'z', at: 0 }] });
+    s.slices = [{ plane: 'xz', at: 0, from: [-1, -0.5], to: [1, 1], cells: 30, range: R0 }];
+    s.probes = [{ kind: 'point', name: 'under', at: [0.2, 0.1, -0.2], range: R0 }];
+    const r = solveScene(s, { convergence: false })!;
+    const g = r.slices[0];
+    for (let j = 0; j < g.nv; j++) {
+      const v = g.v0 + (j + 0.5) * g.dv;
+      for (let i = 0; i < g.nu; i++) if (v < 0) expect(g.potential[j * g.nu + i]).toBe(0);
+    }
+    expect(r.probes[0].points[0].potential).toBe(0);
+    // Just above the plane the potential rises from 0 toward the sphere (image method).
+    let j0 = 0;
+    while (g.v0 + (j0 + 0.5) * g.dv <= 0) j0++;
+    const above = g.potential[j0 * g.nu + Math.floor(g.nu / 2)];
+    expect(above).toBeGreaterThan(0);
+    expect(above).toBeLessThan(g.potential[(j0 + 1) * g.nu + Math.floor(g.nu / 2)]);
+  });
+
   it('a grid over the cell limit is coarsened, with a warning', () => {
     const slice = { plane: 'xy' as const, at: 0, from: [0, 0] as [number, number], to: [2, 1] as [number, number], cells: 1000, range: R0 };
     const grid = sliceGrid(slice, 5000);

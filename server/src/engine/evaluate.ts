@@ -1,11 +1,12 @@
 // Potential and field at user-chosen places of a solved 3d scene: probes (points and lines) and slice
 // grids (values at cell centres, row-major, see SliceResult). Cells inside a solid conductor take its
 // potential and NaN field (grammar/geometry.ts insideElectrode), so contours need no holes; a cell
-// centre that falls on a point or line charge takes the value a quarter cell away. Grids
+// centre that falls on a point or line charge takes the value a quarter cell away; behind a ground
+// plane everything is 0 (behindGround). Grids
 // respect a cell limit: a larger slice is evaluated on a coarser grid, with a warning.
 // Large grids take the panel part from the treecode (fast/field-evaluator.ts, opening angle 0.3:
 // about 2e-4 relative) instead of the direct sum; free charges are always summed directly.
-import { insideElectrode } from '../../../grammar/geometry';
+import { insideElectrode, sceneBounds } from '../../../grammar/geometry';
 import type { Diagnostic, Scene3d, Slice } from '../../../grammar/scene';
 import { diagnostic } from '../../../grammar/diagnostics';
 import { addFreeCharges, potentialAndField, type FieldState3d } from './bem3d/field';
@@ -14,11 +15,27 @@ import { FieldEvaluator } from './fast/field-evaluator';
 import { groundLines, sliceAxes, sliceOutlines } from './outlines';
 import type { ProbeResult, SliceResult } from './result';
 
+/**
+ * A test for points behind a ground plane (on the side away from the scene): there the grounded
+ * conductor screens everything, so the potential is 0 V and the field zero (the image charges that
+ * stand there are a device of the method, not a field).
+ */
+export function behindGround(scene: Scene3d): (p: readonly number[]) => boolean {
+  const b = sceneBounds(scene);
+  if (!b || scene.groundPlanes.length === 0) return () => false;
+  const sides = scene.groundPlanes.map((g) => {
+    const k = { x: 0, y: 1, z: 2 }[g.axis];
+    return { k, at: g.at, side: Math.sign((b.min[k] + b.max[k]) / 2 - g.at) };
+  });
+  return (p) => sides.some((s) => s.side !== 0 && Math.sign(p[s.k] - s.at) === -s.side);
+}
+
 /** Above this many point-panel pairs a slice grid uses the treecode for the panel charges. */
 export const TREECODE_ABOVE = 4e6;
 
 /** Probes: precise sums; a probe inside a solid conductor reads its potential and no field (as the grid does). */
 export function evaluateProbes(scene: Scene3d, state: FieldState3d, potentials: readonly number[]): ProbeResult[] {
+  const behind = behindGround(scene);
   return scene.probes.map((p) => {
     const at: number[][] = [];
     if (p.kind === 'point') at.push([...p.at]);
@@ -34,6 +51,7 @@ export function evaluateProbes(scene: Scene3d, state: FieldState3d, potentials: 
       points: at.map((q) => {
         const k = insideElectrode(scene, q);
         if (k >= 0) return { at: q, potential: potentials[k], field: [0, 0, 0], fieldMagnitude: 0 };
+        if (behind(q)) return { at: q, potential: 0, field: [0, 0, 0], fieldMagnitude: 0 };
         const [phi, ex, ey, ez] = potentialAndField(state, q[0], q[1], q[2], 'precise');
         return { at: q, potential: phi, field: [ex, ey, ez], fieldMagnitude: Math.hypot(ex, ey, ez) };
       }),
@@ -89,6 +107,7 @@ export function evaluateSlices(
     p[iw] = slice.at;
     // Cells outside every conductor, and their centres.
     const outside: number[] = [];
+    const behind = behindGround(scene);
     for (let j = 0; j < nv; j++) {
       for (let i = 0; i < nu; i++) {
         const idx = j * nu + i;
@@ -99,6 +118,8 @@ export function evaluateSlices(
         if (k >= 0) {
           potential[idx] = potentials[k];
           fieldU[idx] = fieldV[idx] = fieldMagnitude[idx] = NaN;
+        } else if (behind(p)) {
+          potential[idx] = fieldU[idx] = fieldV[idx] = fieldMagnitude[idx] = 0;
         } else outside.push(idx);
       }
     }
