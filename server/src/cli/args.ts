@@ -1,8 +1,10 @@
 // Command-line arguments into a plain command; every mistake becomes a `usage` command with a message.
+import { CHECK_FORMATS, type CheckFormat } from './check-formats';
 
 export type Command =
   | { kind: 'solve'; file: string; json: boolean; grids: boolean; svg: string | null; html: string | null }
-  | { kind: 'check'; files: string[] }
+  | { kind: 'check'; files: string[]; format: CheckFormat }
+  | { kind: 'sweep'; file: string; csv: boolean; out: string | null; name: string | null }
   | { kind: 'lsp' }
   | { kind: 'help' }
   | { kind: 'version' }
@@ -11,9 +13,12 @@ export type Command =
 export const USAGE = `Usage:
   voltscape solve FILE [--json [--grids]] [--svg OUT] [--html OUT]
                         solve a scene; print a report (or JSON), write pictures
-  voltscape check FILE...
-                        print every diagnostic as file:line:col severity code message;
-                        solves scenes that set a \`limit\` to test it
+  voltscape check [--format text|json|sarif] FILE...
+                        print every diagnostic as file:line:col severity code message
+                        (or one JSON or SARIF 2.1.0 log); solves scenes that set a \`limit\` to test it
+  voltscape sweep FILE [--csv] [--out OUT] [--let NAME]
+                        run the scene's \`sweep\`: solve at each value, tabulate each electrode's
+                        peak field, self capacitance and margin
   voltscape lsp --stdio start the language server on standard input and output
   voltscape --help      this text
   voltscape --version   the version
@@ -33,6 +38,8 @@ export function parseArgs(argv: readonly string[]): Command {
       return parseSolve(rest);
     case 'check':
       return parseCheck(rest);
+    case 'sweep':
+      return parseSweep(rest);
     case 'lsp':
       return parseLsp(rest);
     default:
@@ -91,14 +98,46 @@ function parseSolve(args: readonly string[]): Command {
 
 function parseCheck(args: readonly string[]): Command {
   const files: string[] = [];
+  let format: CheckFormat = 'text';
   let optionsDone = false;
-  for (const a of args) {
+  for (let i = 0; i < args.length; i++) {
+    const a = args[i];
     if (!optionsDone && a === '--') optionsDone = true;
-    else if (!optionsDone && a.startsWith('-') && a !== '-') return { kind: 'usage', message: `unknown option ${a} for check` };
+    else if (!optionsDone && (a === '--format' || a.startsWith('--format='))) {
+      const value = a === '--format' ? args[++i] : a.slice('--format='.length);
+      if (!CHECK_FORMATS.includes(value as CheckFormat)) {
+        return { kind: 'usage', message: value === undefined ? '--format needs text, json or sarif' : `unknown format "${value}" (use text, json or sarif)` };
+      }
+      format = value as CheckFormat;
+    } else if (!optionsDone && a.startsWith('-') && a !== '-') return { kind: 'usage', message: `unknown option ${a} for check` };
     else files.push(a);
   }
   if (files.length === 0) return { kind: 'usage', message: 'check needs at least one scene file' };
-  return { kind: 'check', files };
+  return { kind: 'check', files, format };
+}
+
+function parseSweep(args: readonly string[]): Command {
+  const files: string[] = [];
+  let csv = false;
+  let out: string | null = null;
+  let name: string | null = null;
+  let optionsDone = false;
+  for (let i = 0; i < args.length; i++) {
+    const a = args[i];
+    if (optionsDone || !a.startsWith('-') || a === '-') files.push(a);
+    else if (a === '--') optionsDone = true;
+    else if (a === '--csv') csv = true;
+    else if (a === '--out' || a.startsWith('--out=') || a === '--let' || a.startsWith('--let=')) {
+      const flag = a.startsWith('--out') ? '--out' : '--let';
+      const value = a.includes('=') ? a.slice(a.indexOf('=') + 1) : args[++i];
+      if (value === undefined || value === '' || value.startsWith('-')) return { kind: 'usage', message: `${flag} needs ${flag === '--out' ? 'an output file' : 'the name of a let'}` };
+      if (flag === '--out') out = value;
+      else name = value;
+    } else return { kind: 'usage', message: `unknown option ${a} for sweep` };
+  }
+  if (files.length === 0) return { kind: 'usage', message: 'sweep needs a scene file' };
+  if (files.length > 1) return { kind: 'usage', message: `sweep takes one scene file, got ${files.length}` };
+  return { kind: 'sweep', file: files[0], csv, out, name };
 }
 
 function parseLsp(args: readonly string[]): Command {

@@ -4,9 +4,10 @@
 import { readFileSync, writeFileSync } from 'node:fs';
 import pkg from '../../../package.json';
 import { analyzeText } from '../../../grammar/index';
-import { solveScene } from '../engine/index';
+import { createEngineCache, solveScene } from '../engine/index';
 import { renderPreviewHtml } from './html-export';
 import { EXIT_FAILED, firstLine, run, type Io, type Stages } from './run';
+import { runSweep } from './sweep';
 
 function fatal(error: unknown): void {
   process.stderr.write(`voltscape: unexpected failure: ${firstLine(error)}\n`);
@@ -27,6 +28,15 @@ const stages: Stages = {
   analyzeText,
   solveScene: (scene) => solveScene(scene),
   renderPreviewHtml: ({ file, scene, result }) => renderPreviewHtml(result, scene.title ?? file),
+  // One engine cache for all the steps of a sweep, so that sweeping a drive reuses the factorization.
+  sweep: (command, io) =>
+    runSweep(command, io, {
+      analyzeText,
+      newSolver: () => {
+        const cache = createEngineCache();
+        return (scene) => solveScene(scene, { cache });
+      },
+    }),
   // Loaded only for `voltscape lsp`, so the other commands start without the server's modules.
   startLanguageServer: async () => {
     const { startLanguageServer } = await import('../lsp/server');

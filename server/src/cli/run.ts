@@ -5,6 +5,8 @@ import type { Diagnostic, Scene } from '../../../grammar/scene';
 import type { Result } from '../engine/result';
 import { parseArgs, USAGE } from './args';
 import { countErrors, formatDiagnostic, sortDiagnostics } from './diagnostics';
+import { renderCheck, type CheckFormat, type FileCheck } from './check-formats';
+import type { SweepCommand } from './sweep';
 import { failureJson, resultJson, stringify } from './json';
 import { renderReport, SAFETY_CAUTION } from './report';
 import { completeSlices } from './slice-outlines';
@@ -46,6 +48,8 @@ export interface Stages {
   renderPreviewHtml?: (input: PreviewInput) => string;
   /** `voltscape lsp --stdio`: starts the server, which then keeps the process alive. */
   startLanguageServer?: () => void | Promise<void>;
+  /** `voltscape sweep` (server/src/cli/sweep.ts), wired with the real grammar and a cached solver. */
+  sweep?: (command: SweepCommand, io: Io) => number | Promise<number>;
 }
 
 export async function run(argv: readonly string[], io: Io, stages: Stages): Promise<number> {
@@ -68,7 +72,13 @@ export async function run(argv: readonly string[], io: Io, stages: Stages): Prom
       await stages.startLanguageServer();
       return EXIT_CLEAN;
     case 'check':
-      return check(command.files, io, stages);
+      return check(command.files, io, stages, command.format);
+    case 'sweep':
+      if (!stages.sweep) {
+        io.err('voltscape: sweep is not part of this build\n');
+        return EXIT_FAILED;
+      }
+      return stages.sweep(command, io);
     case 'solve':
       return solve(command, io, stages);
   }
@@ -157,27 +167,31 @@ export function solveDiagnostics(scene: Scene, result: Result): Diagnostic[] {
 
 // ---- check ----
 
-async function check(files: readonly string[], io: Io, stages: Stages): Promise<number> {
+async function check(files: readonly string[], io: Io, stages: Stages, format: CheckFormat = 'text'): Promise<number> {
   let exit = EXIT_CLEAN;
   let errors = 0;
   let warnings = 0;
   let brokenLimit = false;
+  // What each file gave, for --format json|sarif (check-formats.ts).
+  const found: FileCheck[] = [];
   for (const file of files) {
     const read = readScene(io, file);
     if (!read.ok) {
       io.err(`voltscape: ${read.message}\n`);
+      found.push({ file, diagnostics: [], failure: read.message });
       exit = EXIT_FAILED;
       continue;
     }
     const analysed = guarded(`analysing ${file}`, () => stages.analyzeText(read.text));
     if (!analysed.ok) {
       io.err(`voltscape: ${analysed.message}\n`);
+      found.push({ file, diagnostics: [], failure: analysed.message });
       exit = EXIT_FAILED;
       continue;
     }
     const diagnostics = [...analysed.value.diagnostics];
     const scene = analysed.value.scene;
-    let failed = false;
+    let failed: string | false = false;
     if (scene && scene.limit && countErrors(diagnostics) === 0) {
       // A `limit` is a design rule: test it, which needs a solve. The peak fields are all it needs,
       // so slices and probes are left out of this solve.
@@ -185,17 +199,18 @@ async function check(files: readonly string[], io: Io, stages: Stages): Promise<
       const solved = guarded(`solving ${file}`, () => stages.solveScene(fieldsOnly));
       if (!solved.ok) {
         io.err(`voltscape: ${solved.message}\n`);
-        failed = true;
+        failed = solved.message;
       } else if (solved.value === null) {
         io.err(`voltscape: ${file}: could not solve the scene to test its limit\n`);
-        failed = true;
+        failed = `${file}: could not solve the scene to test its limit`;
       } else {
         const extra = solveDiagnostics(scene, solved.value);
         if (extra.some((d) => d.severity === 'error')) brokenLimit = true;
         diagnostics.push(...extra);
       }
     }
-    for (const d of sortDiagnostics(diagnostics)) io.out(formatDiagnostic(file, d) + '\n');
+    if (format === 'text') for (const d of sortDiagnostics(diagnostics)) io.out(formatDiagnostic(file, d) + '\n');
+    found.push({ file, diagnostics: sortDiagnostics(diagnostics), failure: failed || null });
     errors += countErrors(diagnostics);
     warnings += diagnostics.filter((d) => d.severity === 'warning').length;
     if (failed) exit = EXIT_FAILED;
@@ -203,6 +218,7 @@ async function check(files: readonly string[], io: Io, stages: Stages): Promise<
   }
   io.err(`${files.length} ${files.length === 1 ? 'file' : 'files'} checked: ${plural(errors, 'error')}, ${plural(warnings, 'warning')}\n`);
   if (brokenLimit) io.err(`${SAFETY_CAUTION}\n`);
+  if (format !== 'text') io.out(renderCheck(format, { version: stages.version, files: found, exitCode: exit }));
   return exit;
 }
 
