@@ -33,6 +33,7 @@ export class SolveStatusItem implements vscode.Disposable {
 
   forget(uri: string): void {
     this.docs.delete(uri);
+    if (this.lastScene === uri) this.lastScene = undefined;
     this.refresh();
   }
 
@@ -56,13 +57,18 @@ export class SolveStatusItem implements vscode.Disposable {
     }
   }
 
+  /** The scene last shown in a text editor: still the subject while the preview (a webview) has focus. */
+  private lastScene: string | undefined;
+
   refresh(): void {
     const editor = vscode.window.activeTextEditor;
-    if (!editor || editor.document.languageId !== 'vscape') {
+    if (editor) this.lastScene = editor.document.languageId === 'vscape' ? editor.document.uri.toString() : undefined;
+    const uri = this.lastScene;
+    if (!uri) {
       this.item.hide();
       return;
     }
-    const { text, tooltip } = SolveStatusItem.describe(this.docs.get(editor.document.uri.toString()) ?? {});
+    const { text, tooltip } = SolveStatusItem.describe(this.docs.get(uri) ?? {});
     this.item.text = text;
     this.item.tooltip = tooltip;
     this.item.show();

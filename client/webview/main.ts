@@ -142,6 +142,15 @@ function renderTable(result: Result): void {
     htmlEl('td', {}, row, `${formatField(e.maxField)}${e.maxFieldOnEdge ? ' (on an edge: grows with refinement)' : ''}`);
     htmlEl('td', {}, row, engineering(e.capacitance, `F${per}`));
     row.addEventListener('click', () => selectElectrode(index));
+    // Reachable from the keyboard too: Tab to a row, Enter or Space selects the statement.
+    row.tabIndex = 0;
+    row.setAttribute('aria-label', `${e.name}: select its statement in the editor`);
+    row.addEventListener('keydown', (ev) => {
+      if (ev.key === 'Enter' || ev.key === ' ') {
+        ev.preventDefault();
+        selectElectrode(index);
+      }
+    });
   });
   htmlEl('p', {}, tableEl, `Stored energy ${engineering(result.energy, `J${per}`)}.`);
 }

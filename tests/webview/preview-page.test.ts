@@ -229,4 +229,13 @@ describe('preview page on a solved sphere pair over a ground plane', () => {
       expect((last!.range as { start: { line: number } }).start.line).toBe(index === 0 ? 4 : 5);
     }
   });
+
+  it('selects an electrode from its table row with the keyboard', async () => {
+    const before = (await posted(page)).filter((m) => m.type === 'selectElectrode').length;
+    await page.focus('#electrodes tbody tr[data-electrode="0"]');
+    await page.keyboard.press('Enter');
+    const selects = (await posted(page)).filter((m) => m.type === 'selectElectrode');
+    expect(selects.length).toBe(before + 1);
+    expect(selects[selects.length - 1]).toMatchObject({ index: 0, name: 'left' });
+  });
 });
