@@ -7,7 +7,9 @@
 // - the speed-up of block filling on all threads against one.
 // The scene: a sphere (radius 1 m, geodesic mesh) and a box (1.6 × 1.2 × 1 m) beside it, two
 // electrodes, each solved at 1 V with the other at 0 V (two right-hand sides).
-// Run: `npm run bench -- fast` (or `node --expose-gc dist/bench-fast.js [--small]`).
+// Run: `npm run bench -- fast`, or `node --expose-gc dist/bench-fast.js [--small] [parts...] [--sizes=a,b]`
+// with parts among dense, alone, slice, threads (default: all) and sizes for the "alone" part.
+import { loadavg } from 'node:os';
 import { isMainThread } from 'node:worker_threads';
 import { createSystem, assembleDense, INV_4PI } from '../server/src/engine/bem3d/system';
 import { createSolver, denseOperator, chooseSolver } from '../server/src/engine/linear/solver';
@@ -65,7 +67,7 @@ interface FastRun {
 function runFast(mesh: Mesh, threads?: number): FastRun {
   gc();
   const t0 = performance.now();
-  const S = buildPanelSolver({ vertices: mesh.vertices, triangles: mesh.triangles, points: mesh.centroid, scale: INV_4PI, images: IDENTITY }, { threads });
+  const S = buildPanelSolver({ vertices: mesh.vertices, triangles: mesh.triangles, points: mesh.centroid, scale: INV_4PI, images: IDENTITY }, { threads })!;
   const t1 = performance.now();
   const xs: Float64Array[] = [];
   const iterations: number[] = [];
@@ -98,11 +100,24 @@ const f = (x: number, d = 0) => x.toFixed(d);
 const e = (x: number) => x.toExponential(1);
 
 function main(): void {
-  const small = process.argv.includes('--small');
+  const args = process.argv.slice(2);
+  const small = args.includes('--small');
+  const parts = args.filter((a) => !a.startsWith('--'));
+  const want = (p: string) => parts.length === 0 || parts.includes(p);
+  const sizesArg = args.find((a) => a.startsWith('--sizes='));
   setFastWorkerScript({ file: __filename });
   const threads = fastThreads();
   console.log(`threads: ${threads} (calling thread included); times in ms on this machine, memory in MiB`);
+  console.log(`load average at start (1, 5, 15 min): ${loadavg().map((x) => x.toFixed(1)).join(', ')} — other work on the machine slows every figure`);
+  if (want('dense')) denseAgainstFast(small);
+  if (want('alone')) fastAlone(sizesArg ? sizesArg.slice(8).split(',').map(Number) : small ? [4000, 16000] : [4000, 16000, 64000, 100000]);
+  if (want('slice')) slice(threads);
+  if (want('threads') && threads > 1) threadSpeedup(threads);
+  console.log(`load average at end: ${loadavg().map((x) => x.toFixed(1)).join(', ')}`);
+  closeFastPool();
+}
 
+function denseAgainstFast(small: boolean): void {
   console.log('\n-- dense against fast (2 right-hand sides, GMRES to 1e-10) --');
   console.log('panels | dense ms (method)      store  rss | fast ms (assemble+solve) its    store  rss | time ratio | ΔC rel   Δq max rel');
   for (const target of small ? [1000] : [1000, 2000, 4000]) {
@@ -126,10 +141,13 @@ function main(): void {
     );
   }
 
+}
+
+function fastAlone(sizes: number[]): void {
   console.log('\n-- fast alone --');
   console.log('panels | total ms  assemble  solve | GMRES its | mean rank | H store MiB | rss MiB | C11 (4πε0·m)');
   const fit: [number, number][] = [];
-  for (const target of small ? [4000, 16000] : [4000, 16000, 64000, 100000]) {
+  for (const target of sizes) {
     const mesh = scene(target);
     const r = runFast(mesh);
     const C = capacitance(mesh, r.xs);
@@ -140,8 +158,12 @@ function main(): void {
   }
   const mx = fit.reduce((s, p) => s + p[0], 0) / fit.length, my = fit.reduce((s, p) => s + p[1], 0) / fit.length;
   const slope = fit.reduce((s, p) => s + (p[0] - mx) * (p[1] - my), 0) / fit.reduce((s, p) => s + (p[0] - mx) ** 2, 0);
-  console.log(`fitted exponent of total time against N (${fit.length} sizes from ${f(Math.exp(fit[0][0]))} to ${f(Math.exp(fit[fit.length - 1][0]))} panels): ${slope.toFixed(2)}`);
+  if (fit.length >= 2) {
+    console.log(`fitted exponent of total time against N (${fit.length} sizes from ${f(Math.exp(fit[0][0]))} to ${f(Math.exp(fit[fit.length - 1][0]))} panels): ${slope.toFixed(2)}`);
+  }
+}
 
+function slice(threads: number): void {
   console.log('\n-- slice 256 × 256 from 20,480 panels (sphere, uneven density; plane z = 0.1 through it) --');
   const sphere = icosphere(1, 5);
   const sigma = Float64Array.from({ length: sphere.area.length }, (_, j) => 1 + 0.5 * sphere.centroid[3 * j] + 0.3 * sphere.centroid[3 * j + 2] ** 2);
@@ -162,14 +184,14 @@ function main(): void {
     console.log(`threads ${th}: tree ${f(t1 - t0)} ms, evaluation best of 3: ${f(Math.min(...runs))} ms (runs ${runs.map((x) => f(x)).join(', ')})`);
   }
 
-  if (threads > 1) {
-    console.log('\n-- block filling on all threads against one (16k panels) --');
-    const mesh = scene(16000);
-    const one = runFast(mesh, 1);
-    const all = runFast(mesh, threads);
-    console.log(`assembly: 1 thread ${f(one.assembleMs)} ms, ${threads} threads ${f(all.assembleMs)} ms, speed-up ${(one.assembleMs / all.assembleMs).toFixed(2)}`);
-  }
-  closeFastPool();
+}
+
+function threadSpeedup(threads: number): void {
+  console.log('\n-- block filling on all threads against one (4k panels) --');
+  const mesh = scene(4000);
+  const one = runFast(mesh, 1);
+  const all = runFast(mesh, threads);
+  console.log(`assembly: 1 thread ${f(one.assembleMs)} ms, ${threads} threads ${f(all.assembleMs)} ms, speed-up ${(one.assembleMs / all.assembleMs).toFixed(2)}`);
 }
 
 if (isFastWorker()) startFastWorker();

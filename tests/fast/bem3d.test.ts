@@ -4,6 +4,7 @@ import { imageSet } from '../../server/src/engine/bem3d/images';
 import { assembleDense, createSystem, surfacePotentialAndGradient } from '../../server/src/engine/bem3d/system';
 import { chooseSolver, createSolver, denseOperator, FAST_MIN_UNKNOWNS } from '../../server/src/engine/linear/solver';
 import { FAST_KIND, fastOperator } from '../../server/src/engine/fast/bem3d';
+import { transferSolution } from '../../server/src/engine/fast/transfer';
 import { boxSurface, icosphere, joinMeshes } from './fixtures';
 
 const R0 = { start: { line: 0, character: 0 }, end: { line: 0, character: 0 } };
@@ -22,7 +23,7 @@ describe('the fast solver inside the 3D solver', () => {
     const sys = createSystem(mesh, images);
     const rhs = [0, 1].map((e) => Float64Array.from(mesh.electrode, (o) => (o === e ? 1 : 0)));
     const dense = createSolver(denseOperator(sys.n, assembleDense(sys)!), 'dense-lu').solve(rhs)!;
-    const fastSolver = createSolver(fastOperator(sys), FAST_KIND);
+    const fastSolver = createSolver(fastOperator(sys)!, FAST_KIND);
     const fast = fastSolver.solve(rhs, { tolerance: 1e-10 })!;
     expect(fastSolver.name).toBe(FAST_KIND);
     for (let k = 0; k < 2; k++) {
@@ -60,5 +61,29 @@ describe('the fast solver inside the 3D solver', () => {
       const g = Math.hypot(ref[1], ref[2], ref[3]);
       expect(Math.hypot(precise[1] + ref[1], precise[2] + ref[2], precise[3] + ref[3]) / g).toBeLessThan(1e-3);
     }
+  });
+});
+
+describe('cancellation and warm starts', () => {
+  it('stops assembly and GMRES when cancelled', () => {
+    const mesh = icosphere(1, 2);
+    const sys = createSystem(mesh, imageSet([]).images);
+    expect(fastOperator(sys, () => true)).toBeNull();
+    const solver = createSolver(fastOperator(sys)!, FAST_KIND);
+    let polls = 0;
+    expect(solver.solve([new Float64Array(sys.n).fill(1)], { isCancelled: () => ++polls > 3 })).toBeNull();
+  });
+
+  it('starts a refined mesh from the coarse solution and needs fewer iterations', () => {
+    const coarse = icosphere(1, 2), fine = icosphere(1, 3);
+    const sc = createSystem(coarse, imageSet([]).images), sf = createSystem(fine, imageSet([]).images);
+    const xc = createSolver(fastOperator(sc)!, FAST_KIND).solve([new Float64Array(sc.n).fill(1)])![0];
+    const start = transferSolution(coarse, xc, fine);
+    const solver = createSolver(fastOperator(sf)!, FAST_KIND);
+    const b = [new Float64Array(sf.n).fill(1)];
+    solver.solve(b, { tolerance: 1e-8 });
+    const cold = solver.iterations[0];
+    solver.solve(b, { tolerance: 1e-8, initial: [start] });
+    expect(solver.iterations[0]).toBeLessThan(cold);
   });
 });

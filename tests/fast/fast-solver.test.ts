@@ -27,7 +27,7 @@ const n = P.count;
 const src = panelEntrySource(P, mesh.centroid, K);
 const dense = denseMatrix(src, n);
 // Small leaves and blocks so that this small problem has several tree levels and far blocks.
-const fast = buildFastSolver(src, mesh.centroid, panelExtent(P), { leafSize: 24, blockSize: 64 });
+const fast = buildFastSolver(src, mesh.centroid, panelExtent(P), { leafSize: 24, blockSize: 64 })!;
 
 describe('cluster tree', () => {
   it('orders every point once and keeps each node inside its box', () => {
@@ -79,7 +79,7 @@ describe('hierarchical matrix on 2352 panels', () => {
     const sphere = boxSurface([1, 1, 1], 14);
     const Q = preparePanels(sphere);
     const big = panelEntrySource(Q, sphere.centroid, K);
-    const S = buildFastSolver(big, sphere.centroid, panelExtent(Q));
+    const S = buildFastSolver(big, sphere.centroid, panelExtent(Q))!;
     const N = Q.count;
     expect(S.stats.denseEntries + S.stats.lowRankEntries).toBeLessThan((2 / 3) * N * N);
     const x = new Float64Array(N).map((_, i) => Math.cos(i * 0.11) + 0.5);

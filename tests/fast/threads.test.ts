@@ -28,8 +28,8 @@ describe('worker threads give the same numbers as one thread', () => {
   it('fills the H-matrix blocks on two threads with the same product', () => {
     setFastWorkerScript({ code });
     expect(fastThreads(2)).toBe(2);
-    const two = buildPanelSolver(sys, { threads: 2 }, P);
-    const one = buildPanelSolver(sys, { threads: 1 }, P);
+    const two = buildPanelSolver(sys, { threads: 2 }, P)!;
+    const one = buildPanelSolver(sys, { threads: 1 }, P)!;
     expect(two.stats.blocks).toBe(one.stats.blocks);
     const x = Float64Array.from({ length: P.count }, (_, i) => Math.sin(i));
     const y1 = new Float64Array(P.count), y2 = new Float64Array(P.count);

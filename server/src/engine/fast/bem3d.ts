@@ -23,14 +23,15 @@ interface FastOperator extends LinearOperator {
   fast: FastSolver;
 }
 
-/** The H-matrix operator of a 3D system (entries as bem3d/system.ts entry()). */
-export function fastOperator(sys: Bem3dSystem): FastOperator {
+/** The H-matrix operator of a 3D system (entries as bem3d/system.ts entry()); null when cancelled. */
+export function fastOperator(sys: Bem3dSystem, isCancelled?: () => boolean): FastOperator | null {
   const fast = buildPanelSolver(
     { vertices: sys.mesh.vertices, triangles: sys.mesh.triangles, points: sys.points, scale: INV_4PI, images: sys.images },
     {},
     sys.panels,
+    isCancelled,
   );
-  return { n: sys.n, fast, apply: (x, y) => fast.apply(x, y) };
+  return fast ? { n: sys.n, fast, apply: (x, y) => fast.apply(x, y) } : null;
 }
 
 /** GMRES on the H-matrix with its block-Jacobi preconditioner, warm-started when given an initial guess. */
@@ -56,7 +57,7 @@ export function fastLinearSolver(op: LinearOperator): LinearSolver {
   return solver;
 }
 
-registerBem3dOperator(FAST_KIND, (sys) => fastOperator(sys));
+registerBem3dOperator(FAST_KIND, (sys, isCancelled) => fastOperator(sys, isCancelled));
 registerSolver(FAST_KIND, false, fastLinearSolver);
 
 const evaluators = new WeakMap<Float64Array, { sys: Bem3dSystem; evaluator: FieldEvaluator }>();

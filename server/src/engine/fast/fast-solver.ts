@@ -12,7 +12,7 @@ export interface FastSolverOptions {
   leafSize: number;
   /** Admissibility η (default 1.5). */
   eta: number;
-  /** ACA tolerance per block (default 1e-6). */
+  /** ACA tolerance per block (default 3e-7). */
   eps: number;
   /** Most unknowns per preconditioner block (default 256). */
   blockSize: number;
@@ -22,7 +22,7 @@ export interface FastSolverOptions {
   restart: number;
 }
 
-export const DEFAULT_FAST_OPTIONS: FastSolverOptions = { leafSize: 32, eta: 1.5, eps: 1e-6, blockSize: 256, tol: 1e-9, restart: 60 };
+export const DEFAULT_FAST_OPTIONS: FastSolverOptions = { leafSize: 32, eta: 1.5, eps: 3e-7, blockSize: 256, tol: 1e-9, restart: 60 };
 
 /** Fills a list of blocks, possibly on several threads; returns them in any order. */
 export type BlockFiller = (tasks: BlockTask[], order: Int32Array, eps: number) => (DenseBlock | LowRankBlock)[];
@@ -57,7 +57,8 @@ export interface FastSolver {
 
 /**
  * Builds the solver for the matrix whose entries `src` gives. `points` are the collocation points
- * (3 per unknown), `extent` what each unknown's box must cover (the panel vertices).
+ * (3 per unknown), `extent` what each unknown's box must cover (the panel vertices). Null when
+ * `isCancelled` turned true during assembly.
  */
 export function buildFastSolver(
   src: EntrySource,
@@ -65,7 +66,8 @@ export function buildFastSolver(
   extent: { coords: Float64Array; stride: number } | undefined,
   options: Partial<FastSolverOptions> = {},
   filler?: BlockFiller,
-): FastSolver {
+  isCancelled?: () => boolean,
+): FastSolver | null {
   const o = { ...DEFAULT_FAST_OPTIONS, ...options };
   const timings: Record<string, number> = {};
   let t0 = performance.now();
@@ -75,8 +77,15 @@ export function buildFastSolver(
   timings.tree = performance.now() - t0;
   t0 = performance.now();
   const H: HMatrix = { size: n, tree, dense: [], lowRank: [] };
-  const blocks = filler ? filler(tasks, tree.order, o.eps) : tasks.map((t) => fillBlock(src, tree.order, t, o.eps));
-  for (const b of blocks) addBlock(H, b);
+  if (filler) {
+    for (const b of filler(tasks, tree.order, o.eps)) addBlock(H, b);
+  } else {
+    for (let k = 0; k < tasks.length; k++) {
+      if ((k & 63) === 0 && isCancelled?.()) return null;
+      addBlock(H, fillBlock(src, tree.order, tasks[k], o.eps));
+    }
+  }
+  if (isCancelled?.()) return null;
   timings.assemble = performance.now() - t0;
   t0 = performance.now();
   const P: BlockJacobi = buildBlockJacobi(H, o.blockSize);

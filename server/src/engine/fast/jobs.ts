@@ -30,12 +30,20 @@ export interface PackedBlocks {
   factors: Float32Array;
 }
 
-export function runAssemble(job: AssembleJob, P?: Panels): (DenseBlock | LowRankBlock)[] {
+/**
+ * Fills chunks of blocks until none are left. When `isCancelled` (polled per chunk, calling thread
+ * only) turns true, the shared counter is pushed past the end so that every thread stops soon.
+ */
+export function runAssemble(job: AssembleJob, P?: Panels, isCancelled?: () => boolean): (DenseBlock | LowRankBlock)[] {
   const panels = P ?? preparePanels({ vertices: job.vertices, triangles: job.triangles });
   const src = panelEntrySource(panels, job.points, job.scale, job.images);
   const out: (DenseBlock | LowRankBlock)[] = [];
   const count = job.tasks.length / 5;
   for (;;) {
+    if (isCancelled?.()) {
+      Atomics.store(job.counter, 0, count);
+      break;
+    }
     const first = Atomics.add(job.counter, 0, job.chunk);
     if (first >= count) break;
     for (let t = first; t < Math.min(count, first + job.chunk); t++) {

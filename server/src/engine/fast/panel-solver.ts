@@ -24,16 +24,27 @@ export interface PanelSolverOptions extends FastSolverOptions {
   threads: number;
 }
 
-/** Builds the H-matrix solver for a panel system, filling blocks on several threads when it can. */
-export function buildPanelSolver(sys: PanelSystem, options: Partial<PanelSolverOptions> = {}, panels?: Panels): FastSolver {
+/**
+ * Builds the H-matrix solver for a panel system, filling blocks on several threads when it can.
+ * Null when `isCancelled` turned true during assembly.
+ */
+export function buildPanelSolver(sys: PanelSystem, options: Partial<PanelSolverOptions> = {}, panels?: Panels, isCancelled?: () => boolean): FastSolver | null {
   const P = panels ?? preparePanels(sys);
   const src = panelEntrySource(P, sys.points, sys.scale, sys.images);
   const threads = fastThreads(options.threads);
-  const filler = threads > 1 ? (tasks: BlockTask[], order: Int32Array, eps: number) => fillParallel(sys, P, tasks, order, eps, threads) : undefined;
-  return buildFastSolver(src, sys.points, panelExtent(P, sys.points), options, filler);
+  const filler = threads > 1 ? (tasks: BlockTask[], order: Int32Array, eps: number) => fillParallel(sys, P, tasks, order, eps, threads, isCancelled) : undefined;
+  return buildFastSolver(src, sys.points, panelExtent(P, sys.points), options, filler, isCancelled);
 }
 
-function fillParallel(sys: PanelSystem, P: Panels, tasks: BlockTask[], order: Int32Array, eps: number, threads: number): (DenseBlock | LowRankBlock)[] {
+function fillParallel(
+  sys: PanelSystem,
+  P: Panels,
+  tasks: BlockTask[],
+  order: Int32Array,
+  eps: number,
+  threads: number,
+  isCancelled?: () => boolean,
+): (DenseBlock | LowRankBlock)[] {
   // Far blocks first (they vary most in cost), then the dense ones; chunks small enough to balance.
   const sorted = [...tasks].sort((a, b) => Number(b.far) - Number(a.far) || b.m * b.n - a.m * a.n);
   const flat = new Int32Array(5 * sorted.length);
@@ -53,12 +64,13 @@ function fillParallel(sys: PanelSystem, P: Panels, tasks: BlockTask[], order: In
   };
   let mine: (DenseBlock | LowRankBlock)[] = [];
   const replies = runParallel(threads, job as unknown as Record<string, unknown>, () => {
-    mine = runAssemble(job, P);
+    mine = runAssemble(job, P, isCancelled);
   });
+  if (isCancelled?.()) return [];
   if (!replies) {
     // A worker failed: do it all here (the reference path).
     job.counter[0] = 0;
-    return runAssemble(job, P);
+    return runAssemble(job, P, isCancelled);
   }
   for (const r of replies) mine = mine.concat(unpackBlocks(r as PackedBlocks));
   return mine;
