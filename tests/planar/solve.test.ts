@@ -62,6 +62,28 @@ describe('planar solve: per-metre figures of cross-sections', () => {
     expect(rel(res.electrodes[0].capacitance, TWO_PI_EPS / Math.acosh(h / a))).toBeLessThan(1e-4);
   });
 
+  it('reads 0 V and no field behind the ground plane, where the plane screens everything', () => {
+    // A grounded conducting plane screens the half-space behind it (textbook electrostatics): the
+    // image values there are fictitious.
+    const res = solvePlanar(
+      planarScene([[{ kind: 'circle', center: [0, 0.02], radius: 0.005, hollow: false }, volts(1000)]], {
+        groundPlanes: [{ axis: 'y', at: 0, range: R0 }],
+        mesh: { kind: 'preset', preset: 'coarse' },
+        probes: [
+          { kind: 'point', name: 'below', at: [0.003, -0.01], range: R0 },
+          { kind: 'point', name: 'above', at: [0.003, 0.01], range: R0 },
+        ],
+        slices: [{ plane: 'xy', at: 0, from: [-0.04, -0.02], to: [0.04, 0.06], cells: 16, range: R0 }],
+      }),
+    )!;
+    expect(res.probes[0].points[0].potential).toBe(0);
+    expect(res.probes[0].points[0].fieldMagnitude).toBe(0);
+    expect(res.probes[1].points[0].potential).toBeGreaterThan(100);
+    const g = res.slices[0];
+    for (let i = 0; i < g.nu; i++) expect(g.potential[i]).toBe(0); // the bottom row lies behind the plane
+    expect(g.groundLines).toEqual([[-0.04, 0, 0.04, 0]]);
+  });
+
   it('gives the same for a ground plane x = c', () => {
     // Same closed form as above, with the plane along the other axis.
     const a = 0.005, h = 0.015;

@@ -12,7 +12,7 @@
 // no capacitance to infinity).
 import type { Diagnostic, Drive, Range, SceneAxisymmetric, ScenePlanar, Vec2 } from '../../../../grammar/scene';
 import { EPSILON_0 } from '../../../../grammar/scene';
-import { insideElectrode } from '../../../../grammar/geometry';
+import { insideElectrode, sceneBounds } from '../../../../grammar/geometry';
 import { applyDrives, unchargedFloating } from '../drives';
 import { changeBetweenLevels, richardson, NO_ESTIMATE } from '../convergence';
 import { createSolver, denseOperator, type LinearSolver } from '../linear/solver';
@@ -506,6 +506,15 @@ function postSolveDiagnostics(scene: Scene2d, setup: Space2d, electrodes: Electr
   });
 }
 
+/** A test for points on the far side of the mirror line from the scene's content (electrodes and charges). */
+function behindGround(scene: Scene2d, mirror: Mirror | null): (u: number, v: number) => boolean {
+  const box = sceneBounds(scene);
+  if (!mirror || !box) return () => false;
+  const side = Math.sign((box.min[mirror.axis] + box.max[mirror.axis]) / 2 - mirror.at);
+  if (side === 0) return () => false;
+  return (u, v) => Math.sign((mirror.axis === 0 ? u : v) - mirror.at) === -side;
+}
+
 // ---- the pipeline ----
 
 export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions = {}): Result | null {
@@ -581,6 +590,9 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
     energy += 0.5 * f.value * acc[0];
   }
 
+  // Behind the ground plane (the side away from the scene) the grounded plane screens everything:
+  // 0 V and no field there, as in 3d (the image values would be fictitious).
+  const behind = behindGround(scene, setup.mirror);
   t = performance.now();
   const probes: ProbeResult[] = scene.probes.map((p) => {
     const points: Vec2[] =
@@ -595,6 +607,7 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
       points: points.map((at) => {
         const inside = insideElectrode(scene, at);
         if (inside >= 0) return { at: [...at], potential: dFine.potentials[inside], field: [0, 0], fieldMagnitude: 0 };
+        if (behind(at[0], at[1])) return { at: [...at], potential: 0, field: [0, 0], fieldMagnitude: 0 };
         evaluate(setup, fine.elements, far, dFine, at[0], at[1], acc);
         return { at: [...at], potential: acc[0], field: [acc[1], acc[2]], fieldMagnitude: Math.hypot(acc[1], acc[2]) };
       }),
@@ -670,6 +683,10 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
         if (e >= 0) {
           potential[idx] = d.potentials[e];
           fieldU[idx] = fieldV[idx] = fieldMagnitude[idx] = NaN;
+          continue;
+        }
+        if (behind(u, v)) {
+          potential[idx] = fieldU[idx] = fieldV[idx] = fieldMagnitude[idx] = 0;
           continue;
         }
         evaluate(setup, level.elements, tree, d, u, v, a);
