@@ -135,7 +135,8 @@ if (!run) {
       // VS Code's own save dialog (a path in a quick input here) proposes a name beside the scene.
       const input = page.locator('.quick-input-widget input:visible').first();
       await input.waitFor();
-      expect(await input.inputValue()).toMatch(/sphere-vscape\.svg$/);
+      // The dialog fills its path in after it opens: wait for the proposed name to arrive.
+      await expect.poll(() => input.inputValue(), { timeout: 30_000 }).toMatch(/sphere-vscape\.svg$/);
       await page.keyboard.press('Enter');
       await page.locator('.notifications-toasts', { hasText: 'Voltscape: picture saved to' }).waitFor({ timeout: 30_000 });
       const saved = readFileSync(join(host.workspace, 'sphere-vscape.svg'), 'utf8');
@@ -145,6 +146,8 @@ if (!run) {
     });
 
     it('shows the latest picture again after the panel was hidden and shown', async () => {
+      // No quick input left open by an earlier step may cover the tabs.
+      if (await page.locator('.quick-input-widget:visible').count()) await page.keyboard.press('Escape');
       await page.locator('.tabs-container .tab[aria-label*="Field: sphere.vscape"]').click();
       await openFromExplorer(page, 'notes.txt');
       await page.locator('.tabs-container .tab[aria-label*="Field: sphere.vscape"]').click();
