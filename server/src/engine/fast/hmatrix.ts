@@ -54,7 +54,7 @@ export interface HMatrix {
 }
 
 export interface HOptions {
-  /** Admissibility parameter η (default 1.5). */
+  /** Admissibility parameter η. */
   eta: number;
   /** ACA tolerance per block, relative. */
   eps: number;
