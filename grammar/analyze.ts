@@ -597,15 +597,16 @@ function analyzeLimit(st: State, b: Builder, stmt: Statement) {
 }
 
 function analyzeGround(st: State, b: Builder, stmt: Statement) {
-  if (st.space === 'axisymmetric') {
-    push(st, 'VS214', stmt.keyword.range, 'A ground plane is not available in axisymmetric space; model the grounded surface as an electrode.');
-    return;
-  }
   const read = readAttributes(st, stmt, STATEMENT_ATTRIBUTES.ground, [], 'a ground plane', stmt.keyword.range);
   const at = read.get('at')?.value as { axis: 'x' | 'y' | 'z'; at: number; axisRange: Range } | null | undefined;
   if (!at) return;
   if (st.space === 'planar' && at.axis === 'z') {
     push(st, 'VS214', at.axisRange, 'In planar space a ground plane is a line x = Q or y = Q.');
+    return;
+  }
+  // In axisymmetric space only a plane across the axis keeps the symmetry.
+  if (st.space === 'axisymmetric' && at.axis !== 'z') {
+    push(st, 'VS214', at.axisRange, 'In axisymmetric space a ground plane must cross the axis: z = Q.');
     return;
   }
   b.groundPlanes.push({ axis: at.axis, at: at.at, range: stmt.range });

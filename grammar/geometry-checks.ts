@@ -387,15 +387,15 @@ function checkCharges(cx: Context, chargeOk: boolean[]): void {
 /** VS306 (electrodes) and VS311 (free charges) crossing or touching a ground plane; VS307 extra planes. */
 function checkGroundPlanes(cx: Context, chargeOk: boolean[]): void {
   const { scene, ok, bounds, tolerance } = cx;
-  if (scene.space === 'axisymmetric') return;
   scene.groundPlanes.forEach((g, gi) => {
     if (gi > 0) {
       cx.out.push(
         diag('VS307', 'error', 'Only one ground plane is supported in this version; this one would be ignored. Model the second grounded surface as an electrode at 0 V.', g.range),
       );
     }
-    const k = { x: 0, y: 1, z: 2 }[g.axis];
-    if (scene.space === 'planar' && k > 1) return;
+    // Coordinates: (x, y, z) in 3d, (x, y) in planar, (r, z) in axisymmetric (only z planes there).
+    const k = scene.space === 'axisymmetric' ? (g.axis === 'z' ? 1 : -1) : { x: 0, y: 1, z: 2 }[g.axis];
+    if (k < 0 || (scene.space === 'planar' && k > 1)) return;
     const plane = `${g.axis} = ${g.at} m`;
     scene.electrodes.forEach((e, i) => {
       if (!ok[i]) return;

@@ -2,6 +2,8 @@ import { describe, expect, it } from 'vitest';
 import { EPSILON_0 } from '../../grammar/scene';
 import { solveAxisymmetric } from '../../server/src/engine/axisymmetric/solve';
 import { axiScene, R0, spheroidProfile, volts } from './scene';
+import { analyzeText } from '../../grammar/index';
+import { solveScene } from '../../server/src/engine/index';
 
 const C0 = 4 * Math.PI * EPSILON_0; // 4πε0 per metre of size
 const rel = (a: number, b: number) => Math.abs(a / b - 1);
@@ -179,5 +181,16 @@ describe('axisymmetric solve: the engine cache', () => {
     expect(again.electrodes[0].charge).toBeCloseTo(fresh.electrodes[0].charge, 20);
     // Sphere at V with a point charge q outside at distance d: Q = C0·a·V − q·a/d (superposition with the image charge, Jackson §2.2).
     expect(rel(again.electrodes[0].charge, C0 * a * 250 - (1e-10 * a) / 0.2)).toBeLessThan(1e-4);
+  });
+});
+
+describe('a ground plane written in an axisymmetric scene', () => {
+  it('reaches the solver from the text: sphere at h/a = 3 gives 1.2011552846 C0 within 1e-4', () => {
+    // Sphere over a grounded plane, C/C0 = sinh α·Σ 1/sinh(nα), cosh α = h/a (references.md, series summed).
+    const text = 'space axisymmetric\nelectrode ball sphere center (0, 300) mm radius 100 mm potential 1 V\nground plane at z = 0';
+    const analysis = analyzeText(text);
+    expect(analysis.diagnostics.filter((d) => d.severity === 'error')).toEqual([]);
+    const r = solveScene(analysis.scene)!;
+    expect(rel(r.electrodes[0].capacitance / (C0 * 0.1), 1.2011552846)).toBeLessThan(1e-4);
   });
 });

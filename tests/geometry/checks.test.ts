@@ -3,6 +3,7 @@
 import { describe, expect, it } from 'vitest';
 import { DIAGNOSTIC_CODES } from '../../grammar/diagnostics';
 import { checkGeometry } from '../../grammar/geometry-checks';
+import { analyzeText } from '../../grammar/index';
 import type {
   Charge3d,
   Diagnostic,
@@ -261,5 +262,19 @@ describe('speed', () => {
     const used = process.cpuUsage(c0);
     expect(d).toEqual([]);
     expect((used.user + used.system) / 1000).toBeLessThan(150);
+  });
+});
+
+describe('ground plane across the axis in axisymmetric space', () => {
+  it('reports a sphere that crosses the plane z = 0 (VS306) on its name', () => {
+    const text = 'space axisymmetric\nelectrode ball sphere center (0, 5) mm radius 10 mm potential 1 kV\nground plane at z = 0';
+    const found = analyzeText(text).diagnostics.filter((d) => d.code === 'VS306');
+    expect(found).toHaveLength(1);
+    expect(found[0].range).toEqual({ start: { line: 1, character: 10 }, end: { line: 1, character: 14 } });
+  });
+
+  it('accepts a sphere clear of the plane', () => {
+    const text = 'space axisymmetric\nelectrode ball sphere center (0, 30) mm radius 10 mm potential 1 kV\nground plane at z = 0';
+    expect(analyzeText(text).diagnostics.filter((d) => d.severity === 'error')).toEqual([]);
   });
 });

@@ -93,7 +93,7 @@ describe('attributes and statements that do not belong', () => {
   });
 
   it('rejects a ground plane in axisymmetric space', () => {
-    checkDiagnostic('space axisymmetric\n⟦ground⟧ plane at z = 0', 'VS214');
+    checkDiagnostic('space axisymmetric\nground plane at ⟦x⟧ = 0', 'VS214');
   });
 
   it('rejects a slice plane in planar space', () => {

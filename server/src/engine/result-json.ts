@@ -58,7 +58,7 @@ export function decodeResult(json: unknown): Result {
     ...r,
     slices: r.slices.map((s) => {
       const out: Record<string, unknown> = { ...s };
-      for (const key of sliceArrays) out[key] = decodeArray(s[key] as EncodedArray);
+      for (const key of sliceArrays) out[key] = decodeArray(s[key] as unknown as EncodedArray);
       return out as unknown as SliceResult;
     }),
   };
