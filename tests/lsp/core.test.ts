@@ -96,6 +96,23 @@ describe('server core', () => {
     expect(events.filter((e) => e.kind === 'voltscape/solveStatus').map((e) => e.params.state)).toEqual(['queued', 'solving', 'solving', 'done']);
   });
 
+  it('skips the coarse pass when only drives changed since the last full result', () => {
+    const { host } = recordingHost();
+    const solver = new RecordingSolver();
+    const core = new ServerCore(host, solver);
+    core.update(uri, scene(1), 1);
+    vi.advanceTimersByTime(defaultSettings.solveDelay);
+    solver.jobs[0].callbacks.onResult('coarse', result, 5);
+    solver.jobs[0].callbacks.onResult('full', result, 5);
+    solver.jobs[0].callbacks.onDone('done');
+    core.update(uri, scene(2), 2);
+    vi.advanceTimersByTime(defaultSettings.solveDelay);
+    expect(solver.jobs[1].request.levels).toEqual(['full']);
+    core.update(uri, scene(2).replace('radius 10 mm', 'radius 11 mm'), 3);
+    vi.advanceTimersByTime(defaultSettings.solveDelay);
+    expect(solver.jobs[2].request.levels).toEqual(['coarse', 'full']);
+  });
+
   it('does not solve a scene with errors; re-sends the last picture once, marked stale', () => {
     const { host, events } = recordingHost();
     const solver = new RecordingSolver();

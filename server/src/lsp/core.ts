@@ -4,7 +4,7 @@
 import { TextDocument } from 'vscode-languageserver-textdocument';
 import type { Diagnostic as LspDiagnostic } from 'vscode-languageserver';
 import { analyzeText, hasErrors, type Analysis } from '../../../grammar/index';
-import type { Diagnostic } from '../../../grammar/scene';
+import type { Diagnostic, Scene } from '../../../grammar/scene';
 import type { Result } from '../engine/result';
 import { encodeResult } from '../engine/result-json';
 import {
@@ -35,6 +35,8 @@ export interface SolvedResult {
   result: Result;
   electrodes: ElectrodeLocation[];
   solveMs: number;
+  /** The geometry it was solved for (see geometrySignature). */
+  geometry: string;
   /** Whether it has been re-sent marked stale. */
   staleAnnounced?: boolean;
 }
@@ -58,6 +60,16 @@ export function documentState(text: string, uri = 'file:///scene.vscape', versio
 /** The electrode statements of an analysis, in scene order (the order of Result.electrodes). */
 export function electrodeLocations(analysis: Analysis): ElectrodeLocation[] {
   return (analysis.scene?.electrodes ?? []).map((e) => ({ name: e.name, range: e.range, nameRange: e.nameRange }));
+}
+
+/**
+ * What the engine's cached mesh and factorization depend on: everything but the drives and the
+ * free charges. When it is unchanged, the engine reuses the factorization, the full level is as quick
+ * as the coarse one, and the coarse pass is skipped.
+ */
+export function geometrySignature(scene: Scene): string {
+  const { electrodes, charges: _charges, ...rest } = scene;
+  return JSON.stringify({ ...rest, electrodes: electrodes.map((e) => [e.name, e.shape]) }, (key, value) => (key === 'range' || key === 'nameRange' ? undefined : value));
 }
 
 export class ServerCore {
@@ -167,6 +179,8 @@ export class ServerCore {
     const version = state.document.version;
     const electrodes = electrodeLocations(state.analysis);
     const statements = state.analysis.ast.statements;
+    const geometry = geometrySignature(scene);
+    const levels: SolveLevel[] = state.solved?.geometry === geometry && state.solved.level === 'full' ? ['full'] : ['coarse', 'full'];
     const start = () => {
       this.timers.delete(uri);
       const seconds = this.settings.maxSolveTime;
@@ -181,15 +195,15 @@ export class ServerCore {
         current.solveDiagnostics = { version, diagnostics: [...levelDiagnostics, remark] };
         this.publish(current);
       };
-      this.status(state, { state: 'solving', level: 'coarse' });
+      this.status(state, { state: 'solving', level: levels[0] });
       this.solver.solve(
         uri,
-        { scene, levels: ['coarse', 'full'], maxPanels: this.settings.maxPanels, maxGridCells: this.settings.maxGridCells },
+        { scene, levels, maxPanels: this.settings.maxPanels, maxGridCells: this.settings.maxGridCells },
         {
           onResult: (level, result, solveMs) => {
             const current = this.documents.get(uri);
             if (!current || current.document.version !== version) return;
-            current.solved = { version, level, result, electrodes, solveMs };
+            current.solved = { version, level, result, electrodes, solveMs, geometry };
             current.solveDiagnostics = { version, diagnostics: result.diagnostics };
             this.publish(current);
             this.host.notify(ResultNotification, this.resultParams(current, current.solved));
