@@ -44,10 +44,14 @@ export interface SweepTable {
   steps: SweepStep[];
 }
 
-/** The N values of a sweep, A to B inclusive, evenly spaced (the last one exactly B). */
+/**
+ * The N values of a sweep, A to B inclusive, evenly spaced (the ends exactly A and B). Inner values are
+ * rounded to 15 significant digits, so that 10 mm to 30 mm gives 0.02 m, not 0.019999999999999997 m.
+ */
 export function sweepValues(from: number, to: number, steps: number): number[] {
   if (steps <= 1) return [from];
-  return Array.from({ length: steps }, (_, i) => (i === steps - 1 ? to : from + ((to - from) * i) / (steps - 1)));
+  const at = (i: number) => Number((from + ((to - from) * i) / (steps - 1)).toPrecision(15));
+  return Array.from({ length: steps }, (_, i) => (i === 0 ? from : i === steps - 1 ? to : at(i)));
 }
 
 /** The text with a range (LSP line and UTF-16 character) replaced. */
