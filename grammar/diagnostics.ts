@@ -70,7 +70,6 @@ export const DIAGNOSTIC_CODES: Record<string, CodeInfo> = {
   VS404: { severity: 'warning', title: 'Floating electrode with nothing to charge it (no drive, no free charge)', example: 'electrode a sphere center (0, 0, 0) radius 10 mm floating' },
   VS405: { severity: 'warning', title: 'Mesh coarsened to fit the panel limit', example: 'mesh size 0.05 mm\nelectrode a sphere center (0, 0, 0) radius 50 mm potential 1 kV' },
   VS406: { severity: 'warning', title: 'Second ground plane on the same axis ignored by the solver', example: 'ground plane at z = 0\nground plane at z = 1 m' },
-  VS407: { severity: 'info', title: 'This space is not solved yet: no figures', example: 'space planar' },
   VS408: { severity: 'warning', title: 'Slice grid reduced to fit the grid-cell limit', example: 'slice xz at y = 0 from (-1, -1) m to (1, 1) m cells 5000' },
   VS409: { severity: 'warning', title: 'Drive equations singular: floating or fixed-charge potentials unresolved', example: '(an electrode with no capacitance; never expected for a meshable scene)' },
 

@@ -3,8 +3,7 @@
 // a hash of the geometry (electrode shapes, ground planes, mesh setting, level), so that an edit that
 // changes only drives or free charges needs no new factorization, and one that changes nothing
 // geometric needs no new solve.
-import type { Range, Scene } from '../../../grammar/scene';
-import { diagnostic } from '../../../grammar/diagnostics';
+import type { Scene } from '../../../grammar/scene';
 import type { Result } from './result';
 import { createCache3d, solve3d, type Cache3d } from './solve';
 import { solveAxisymmetric } from './axisymmetric/solve';
@@ -33,28 +32,10 @@ export function createEngineCache(): EngineCache {
   return { store: new Map() };
 }
 
-const ZERO_RANGE: Range = { start: { line: 0, character: 0 }, end: { line: 0, character: 0 } };
-
-/** A Result with no figures, for a space that has no solver yet. */
-function unsolved(scene: Scene): Result {
-  return {
-    format: 'voltscape-result/1',
-    space: scene.space,
-    electrodes: [],
-    capacitance: { names: [], matrix: [], asymmetry: 0 },
-    energy: 0,
-    probes: [],
-    slices: [],
-    diagnostics: [diagnostic('VS407', ZERO_RANGE, `Space ${scene.space} is not solved yet: no figures.`)],
-    stats: { panels: 0, unknowns: 0, solver: 'none', timings: {}, levels: [] },
-  };
-}
-
 export function solveScene(scene: Scene, options: SolveOptions = {}): Result | null {
   const level = options.level ?? 'full';
   if (scene.space === 'axisymmetric') return solveAxisymmetric(scene, options);
   if (scene.space === 'planar') return solvePlanar(scene, options);
-  if (scene.space !== '3d') return unsolved(scene);
   const cache = options.cache ?? createEngineCache();
   let c3 = cache.store.get('3d') as Cache3d | undefined;
   if (!c3) {
