@@ -8,7 +8,7 @@ import { analyzeText } from '../../grammar/index';
 import { EPSILON_0, type Scene } from '../../grammar/scene';
 import { createEngineCache, solveScene } from '../../server/src/engine/index';
 import { EXIT_CLEAN, EXIT_ERRORS, EXIT_FAILED, run, type Io, type Stages } from '../../server/src/cli/run';
-import { literal, replaceRange, runSweep, sweepValues, type SweepDeps } from '../../server/src/cli/sweep';
+import { literal, MAX_SWEEP_STEPS, replaceRange, runSweep, sweepValues, type SweepDeps } from '../../server/src/cli/sweep';
 
 // An isolated sphere whose radius is swept; the limit is far above its peak field.
 const RADIUS = `scene "Radius study"
@@ -59,6 +59,7 @@ const scenes: Record<string, string> = {
   'collides.vscape': COLLIDES,
   'two.vscape': TWO,
   'coax.vscape': COAX,
+  'too-many.vscape': DRIVE.replace('steps 3', 'steps 1001'),
 };
 
 beforeAll(() => {
@@ -226,6 +227,14 @@ describe('voltscape sweep: what it refuses (exit 2, clear message)', () => {
     expect(r.stderr).toMatch(/VS303/);
     expect(r.stderr).toMatch(/at a = 0\.05 m the scene has \d+ errors?: sweep stopped/);
   }, 60_000);
+
+  it('more steps than a sweep runs', async () => {
+    const h = harness();
+    const r = await h.sweep([path('too-many.vscape')]);
+    expect(r.code).toBe(EXIT_FAILED);
+    expect(r.stderr).toMatch(new RegExp(`asks for ${MAX_SWEEP_STEPS + 1} steps; at most ${MAX_SWEEP_STEPS}`));
+    expect(h.counts.solves).toBe(0);
+  });
 
   it('usage mistakes and unreadable files', async () => {
     const h = harness();

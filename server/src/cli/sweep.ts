@@ -70,6 +70,9 @@ export function literal(value: number, unit: string): string {
   return unit ? `${value} ${unit}` : `${value}`;
 }
 
+/** Most steps one sweep runs: each is a full solve, so a mistyped count must not start a run of days. */
+export const MAX_SWEEP_STEPS = 1000;
+
 type Outcome = { ok: true; table: SweepTable } | { ok: false; message: string; diagnostics?: Diagnostic[] };
 
 /** Runs the sweep; `progress` hears of each solved step. */
@@ -101,6 +104,9 @@ export function computeSweep(text: string, file: string, deps: SweepDeps, only: 
   const definition = base.ast.statements.find((s) => s.type === 'let' && s.name?.text === name && s.value !== null);
   if (!spec || !definition?.value) return { ok: false, message: `cannot sweep '${name}': a sweep needs a let that holds a single quantity` };
 
+  if (spec.steps > MAX_SWEEP_STEPS) {
+    return { ok: false, message: `the sweep of '${name}' asks for ${spec.steps} steps; at most ${MAX_SWEEP_STEPS} are run (each step is a full solve)` };
+  }
   const unit = siUnitOf(spec.dim);
   const scene0 = base.scene;
   const basis = scene0.limit
