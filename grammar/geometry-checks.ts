@@ -246,8 +246,12 @@ function boundsGap(a: Bounds, b: Bounds): number {
   return out;
 }
 
-/** Signed gap between electrodes i and j: negative when they overlap, about 0 when they touch. */
-function electrodeGap(scene: Scene, i: number, j: number, tolerance: number): number {
+/**
+ * Signed gap between electrodes i and j: negative when they overlap, about 0 when they touch.
+ * The sampled search refines only near values within `tolerance`, and returns early below
+ * `stopBelow` (contact checks); pass −Infinity for the least distance of a gap under `tolerance`.
+ */
+export function electrodeGap(scene: Scene, i: number, j: number, tolerance: number, stopBelow = tolerance): number {
   const si = scene.electrodes[i].shape, sj = scene.electrodes[j].shape;
   // Two spheres (or circles), solid or hollow: exact.
   if ((si.kind === 'sphere' || si.kind === 'circle') && (sj.kind === 'sphere' || sj.kind === 'circle')) {
@@ -275,7 +279,7 @@ function electrodeGap(scene: Scene, i: number, j: number, tolerance: number): nu
     return max < 0 ? max : Math.hypot(...gaps.map((g) => Math.max(g, 0)));
   }
   // Stop at the first sign of contact: whether it is touching or overlap only changes the wording.
-  const stop = tolerance;
+  const stop = stopBelow;
   const ij = minimumOver(electrodePatches(scene, i), conductorDistanceFunction(scene, j), tolerance, stop);
   if (ij < stop) return ij;
   const ji = minimumOver(electrodePatches(scene, j), conductorDistanceFunction(scene, i), tolerance, stop);
