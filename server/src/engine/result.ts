@@ -27,6 +27,41 @@ export interface ElectrodeResult {
   /** Self capacitance C_kk of the Maxwell matrix, F (F/m in planar), with its convergence. */
   capacitance: number;
   capacitanceConvergence: Convergence;
+  /** Breakdown checks of this electrode (server/src/engine/post-solve.ts); absent when not computed. */
+  breakdown?: ElectrodeBreakdown;
+}
+
+/**
+ * Margins are factors allowed / actual: above 1 the figure is clear, below 1 it is exceeded; null
+ * when the check does not apply. Design aids, not allowables.
+ */
+export interface ElectrodeBreakdown {
+  /** limit / peak field, or null without a `limit`. */
+  limitMargin: number | null;
+  /** medium strength / peak field, or null when the medium has none. */
+  strengthMargin: number | null;
+  /** Peek's corona-onset gradient (V/m, peak) at the electrode's radius of curvature; null unless a round electrode in air. */
+  coronaOnset: number | null;
+  /** The radius of curvature used for coronaOnset, m. */
+  coronaRadius: number | null;
+  /** coronaOnset / peak field. */
+  coronaMargin: number | null;
+}
+
+/** A near-uniform gap and its Paschen estimate (server/src/engine/post-solve.ts). */
+export interface GapResult {
+  /** Electrode names; the second is 'ground plane' for a gap to the ground plane. */
+  between: [string, string];
+  /** Closest distance, m. */
+  distance: number;
+  /** |ΔV| across the gap, V. */
+  voltage: number;
+  /** Paschen sparking voltage at p = δ·101.325 kPa (20 °C) and this gap, V. */
+  paschen: number;
+  /** Whether the reduced field lies inside the range Paschen's constants were fitted over. */
+  paschenValid: boolean;
+  /** paschen / voltage, or null when there is no voltage across the gap. */
+  margin: number | null;
 }
 
 export interface ProbePoint {
@@ -100,6 +135,8 @@ export interface Result {
   energy: number; // J (J/m in planar)
   probes: ProbeResult[];
   slices: SliceResult[];
+  /** Near-uniform gaps with their Paschen estimate (only for air); absent when not computed. */
+  gaps?: GapResult[];
   /** Diagnostics that need a solve: field limits, mesh warnings. */
   diagnostics: Diagnostic[];
   stats: SolveStats;

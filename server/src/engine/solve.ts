@@ -12,21 +12,22 @@ import { conductorDistance } from '../../../grammar/geometry';
 import type { Diagnostic, Range, Scene3d } from '../../../grammar/scene';
 import { EPSILON_0 } from '../../../grammar/scene';
 import { diagnostic } from '../../../grammar/diagnostics';
-import { formatPoint, formatQuantity } from '../format/quantity';
+import { formatQuantity } from '../format/quantity';
 import { potentialAndField, surfaceFields, type FieldState3d } from './bem3d/field';
 import { imageSet, reflect, type Image } from './bem3d/images';
 import { solveLevel, type Level3d } from './bem3d/level';
 import { surfacePotentialAndGradient } from './bem3d/system';
 import { changeBetweenLevels, NO_ESTIMATE, richardson } from './convergence';
-import { applyDrives, unchargedFloating } from './drives';
+import { applyDrives } from './drives';
 import { evaluateProbes, evaluateSlices } from './evaluate';
 import { chargePotential, chargeSamples, chargeTotal } from './kernels/free-charges';
 import { chooseSolver, DENSE_MAX_UNKNOWNS, needsDenseMatrix, type SolverKind } from './linear/solver';
 import { meshForScene } from './mesh/index';
+import { postSolveChecks } from './post-solve';
 import type { Mesh } from './mesh/types';
 import type { Convergence, ElectrodeResult, Result } from './result';
 
-export const SAFETY_CAUTION = 'Design aid only; follow applicable standards, local codes and licensed practice.';
+export { SAFETY_CAUTION } from './post-solve';
 const ZERO_RANGE: Range = { start: { line: 0, character: 0 }, end: { line: 0, character: 0 } };
 
 /** Caches of the 3d path: meshes and solved levels by geometry key (a few recent geometries only). */
@@ -314,40 +315,11 @@ export function solve3d(scene: Scene3d, o: Solve3dOptions): Result | null {
   if (!slices) return null;
   timings.slices = performance.now() - t;
 
-  // ---- post-solve diagnostics ----
+  // ---- post-solve checks (post-solve.ts): floating, limit, strength, corona, Paschen ----
   const freeAbs = scene.charges.reduce((s, c) => s + Math.abs(chargeTotal(c)), 0);
-  for (const k of unchargedFloating(scene.electrodes.map((e) => e.drive), freeAbs)) {
-    const e = scene.electrodes[k];
-    diagnostics.push(
-      diagnostic('VS404', e.nameRange, `Floating electrode ${e.name} has nothing to charge it: no electrode is driven and there is no free charge, so it sits at 0 V.`),
-    );
-  }
-  electrodes.forEach((r, k) => {
-    const e = scene.electrodes[k];
-    const edge = r.maxFieldOnEdge
-      ? ' The peak sits on a sharp edge, where the computed field grows as the mesh is refined; model the edge radius for a meaningful figure.'
-      : '';
-    const where = ` at ${formatPoint(r.maxFieldAt)}`;
-    if (scene.limit && r.maxField > scene.limit.field) {
-      diagnostics.push(
-        diagnostic(
-          'VS401',
-          e.nameRange,
-          `Peak field ${formatQuantity(r.maxField, 'field')} on ${e.name}${where} exceeds the limit ${formatQuantity(scene.limit.field, 'field')}.${edge} ${SAFETY_CAUTION}`,
-          { maxField: r.maxField, limit: scene.limit.field },
-        ),
-      );
-    } else if (scene.medium.strength !== null && r.maxField > scene.medium.strength) {
-      diagnostics.push(
-        diagnostic(
-          'VS402',
-          e.nameRange,
-          `Peak field ${formatQuantity(r.maxField, 'field')} on ${e.name}${where} is above the rough strength of the medium (${formatQuantity(scene.medium.strength, 'field')}): expect breakdown or corona.${edge} ${SAFETY_CAUTION}`,
-          { maxField: r.maxField, strength: scene.medium.strength },
-        ),
-      );
-    }
-  });
+  const checks = postSolveChecks(scene, electrodes, freeAbs);
+  diagnostics.push(...checks.diagnostics);
+  electrodes.forEach((r, k) => (r.breakdown = checks.breakdown[k]));
   gapDiagnostics(scene, mesh, fineScale, diagnostics);
 
   timings.total = performance.now() - t0;
@@ -359,6 +331,7 @@ export function solve3d(scene: Scene3d, o: Solve3dOptions): Result | null {
     energy: W,
     probes,
     slices,
+    gaps: checks.gaps,
     diagnostics,
     stats: {
       panels: fine.panels,

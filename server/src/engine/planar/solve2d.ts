@@ -13,15 +13,14 @@
 import type { Diagnostic, Drive, Range, SceneAxisymmetric, ScenePlanar, Vec2 } from '../../../../grammar/scene';
 import { EPSILON_0 } from '../../../../grammar/scene';
 import { insideElectrode, sceneBounds } from '../../../../grammar/geometry';
-import { applyDrives, unchargedFloating } from '../drives';
+import { applyDrives } from '../drives';
 import { changeBetweenLevels, richardson, NO_ESTIMATE } from '../convergence';
 import { createSolver, denseOperator, type LinearSolver } from '../linear/solver';
 import type { SolveOptions } from '../index';
-import { SAFETY_CAUTION } from '../solve';
+import { postSolveChecks } from '../post-solve';
 import { sliceGrid as sliceDimensions } from '../evaluate';
 import { diagnostic } from '../../../../grammar/diagnostics';
-import { formatPoint, formatQuantity } from '../../format/quantity';
-import type { Convergence, ElectrodeResult, Outline, ProbeResult, Result, SliceResult } from '../result';
+import type { Convergence, ElectrodeResult, GapResult, Outline, ProbeResult, Result, SliceResult } from '../result';
 import { gaussLegendre } from '../special/gauss-legendre';
 import { addElement, assemble, integrateCurve, type KernelAdd, type Mirror } from './bem2d';
 import { curvePoint, splitPiece, type Element2d, type Piece } from './elements';
@@ -465,45 +464,18 @@ function joinPaths(paths: number[][], tol: number): number[][] {
 
 const ZERO_RANGE: Range = { start: { line: 0, character: 0 }, end: { line: 0, character: 0 } };
 
-function postSolveDiagnostics(scene: Scene2d, setup: Space2d, electrodes: ElectrodeResult[], singular: boolean, diagnostics: Diagnostic[]): void {
+/** VS405 and VS409 here; the rest (VS401, VS402, VS404, corona, Paschen) in post-solve.ts. Returns the gaps. */
+function postSolveDiagnostics(scene: Scene2d, setup: Space2d, electrodes: ElectrodeResult[], singular: boolean, diagnostics: Diagnostic[]): GapResult[] {
   if (setup.coarsened) {
     diagnostics.push(diagnostic('VS405', ZERO_RANGE, `Mesh coarsened to fit the element limit; figures are less accurate than the mesh setting asks.`));
   }
   if (singular) {
     diagnostics.push(diagnostic('VS409', ZERO_RANGE, 'The drive equations are singular: floating or fixed-charge electrodes could not be resolved; their potentials are reported as 0 V.'));
   }
-  const freeAbs = setup.free.reduce((s, f) => s + Math.abs(f.total), 0);
-  for (const k of unchargedFloating(scene.electrodes.map((e) => e.drive), freeAbs)) {
-    const e = scene.electrodes[k];
-    diagnostics.push(diagnostic('VS404', e.nameRange, `Floating electrode ${e.name} has nothing to charge it: no electrode is driven and there is no free charge, so it sits at 0 V.`));
-  }
-  const perMetre = setup.space === 'planar';
-  electrodes.forEach((r, k) => {
-    const e = scene.electrodes[k];
-    const edge = r.maxFieldOnEdge
-      ? ' The peak sits on a sharp edge, where the computed field grows as the mesh is refined; model the edge radius for a meaningful figure.'
-      : '';
-    const where = ` at ${setup.space === 'axisymmetric' ? '(r, z) = ' : ''}${formatPoint(r.maxFieldAt)}${perMetre ? '' : ''}`;
-    if (scene.limit && r.maxField > scene.limit.field) {
-      diagnostics.push(
-        diagnostic(
-          'VS401',
-          e.nameRange,
-          `Peak field ${formatQuantity(r.maxField, 'field')} on ${e.name}${where} exceeds the limit ${formatQuantity(scene.limit.field, 'field')}.${edge} ${SAFETY_CAUTION}`,
-          { maxField: r.maxField, limit: scene.limit.field },
-        ),
-      );
-    } else if (scene.medium.strength !== null && r.maxField > scene.medium.strength) {
-      diagnostics.push(
-        diagnostic(
-          'VS402',
-          e.nameRange,
-          `Peak field ${formatQuantity(r.maxField, 'field')} on ${e.name}${where} is above the rough strength of the medium (${formatQuantity(scene.medium.strength, 'field')}): expect breakdown or corona.${edge} ${SAFETY_CAUTION}`,
-          { maxField: r.maxField, strength: scene.medium.strength },
-        ),
-      );
-    }
-  });
+  const checks = postSolveChecks(scene, electrodes, setup.free.reduce((s, f) => s + Math.abs(f.total), 0));
+  diagnostics.push(...checks.diagnostics);
+  electrodes.forEach((r, k) => (r.breakdown = checks.breakdown[k]));
+  return checks.gaps;
 }
 
 /** A test for points on the far side of the mirror line from the scene's content (electrodes and charges). */
@@ -630,7 +602,7 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
   }
   timings.slices = performance.now() - t;
 
-  postSolveDiagnostics(scene, { ...setup, coarsened }, electrodes, dFine.singular, diagnostics);
+  const gaps = postSolveDiagnostics(scene, { ...setup, coarsened }, electrodes, dFine.singular, diagnostics);
   const names = scene.electrodes.map((e) => e.name);
   let asym = 0;
   let diag = 0;
@@ -647,6 +619,7 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
     energy,
     probes,
     slices,
+    gaps,
     diagnostics,
     stats: {
       panels: nFine,
