@@ -32,6 +32,7 @@ export function renderReport(input: ReportInput): string {
     header(input),
     electrodes(scene, result),
     peakFields(scene, result),
+    breakdownChecks(scene, result),
     capacitance(scene, result),
     probes(result),
     energy(scene, result),
@@ -147,6 +148,77 @@ function verdict(what: string, allowed: number, peak: ElectrodeResult): string {
     `  ${what} ${formatQuantity(allowed, 'field', { digits: 3 })}: highest peak ${formatQuantity(peak.maxField, 'field')} ` +
     `on ${peak.name}, ${status} (margin ${formatNumber(ratio, 3)}×)`
   );
+}
+
+/** The caution of the breakdown section. */
+export const BREAKDOWN_SECTION_CAUTION = 'Design aid, not an allowable; follow applicable standards, local codes and licensed practice.';
+
+/** A margin factor (allowed / actual) with its verdict; '—' when the check does not apply. */
+function marginText(m: number | null | undefined): string {
+  if (m === null || m === undefined || !Number.isFinite(m)) return '—';
+  return `${formatNumber(m, 3)}×${m < 1 ? ' EXCEEDED' : ''}`;
+}
+
+/** Margins per electrode (limit, strength, Peek corona onset) and near-uniform gaps (Paschen). */
+function breakdownChecks(scene: Scene, result: Result): string {
+  const withChecks = result.electrodes.filter((e) => e.breakdown);
+  const gaps = result.gaps ?? [];
+  if (withChecks.length === 0 && gaps.length === 0) return '';
+  const lines = ['Breakdown checks (margin = allowed / actual; potentials read as peak values)'];
+  if (withChecks.length > 0) {
+    const rows = withChecks.map((e) => {
+      const b = e.breakdown!;
+      return [
+        e.name,
+        marginText(b.limitMargin),
+        marginText(b.strengthMargin),
+        b.coronaOnset !== null ? formatQuantity(b.coronaOnset, 'field') : '—',
+        b.coronaRadius !== null ? formatQuantity(b.coronaRadius, 'length') : '—',
+        marginText(b.coronaMargin),
+      ];
+    });
+    lines.push(
+      renderTable(
+        [
+          { header: 'electrode' },
+          { header: 'limit', align: 'right' },
+          { header: 'strength', align: 'right' },
+          { header: 'corona onset (Peek)', align: 'right' },
+          { header: 'at radius', align: 'right' },
+          { header: 'corona', align: 'right' },
+        ],
+        rows,
+      ),
+    );
+  }
+  if (gaps.length > 0) {
+    const rows = gaps.map((g) => [
+      `${g.between[0]} – ${g.between[1]}`,
+      formatQuantity(g.distance, 'length'),
+      formatQuantity(g.voltage, 'potential'),
+      formatQuantity(g.paschen, 'potential'),
+      marginText(g.margin),
+      g.paschenValid ? '' : 'outside the fit range ‡',
+    ]);
+    lines.push(
+      '',
+      `Near-uniform gaps in air (Paschen, p = ${formatNumber(scene.medium.density, 3)} × 101.325 kPa at 20 °C)`,
+      renderTable(
+        [
+          { header: 'gap' },
+          { header: 'distance', align: 'right' },
+          { header: '|ΔV|', align: 'right' },
+          { header: 'sparking V', align: 'right' },
+          { header: 'margin', align: 'right' },
+          { header: 'note' },
+        ],
+        rows,
+      ),
+    );
+    if (gaps.some((g) => !g.paschenValid)) lines.push("  ‡ Paschen's constants were fitted for p·d of about 0.5 to 12 Torr·cm; beyond that the figure is a rough guide.");
+  }
+  lines.push(`  ${BREAKDOWN_SECTION_CAUTION}`);
+  return lines.join('\n');
 }
 
 function capacitance(scene: Scene, result: Result): string {

@@ -1,0 +1,160 @@
+// Breakdown checks after a solve (server/src/engine/post-solve.ts): corona onset by Peek's law on
+// round electrodes in air (VS410), the Paschen estimate for near-uniform gaps (VS411), and the margins
+// in the Result and the report. Scenes are small and mostly 2d, so the suite stays fast.
+import { describe, expect, it } from 'vitest';
+import { analyzeText } from '../../grammar/index';
+import { solveScene } from '../../server/src/engine/index';
+import type { Result } from '../../server/src/engine/result';
+import { renderReport } from '../../server/src/cli/report';
+
+function solve(text: string): { result: Result; codes: string[]; scene: ReturnType<typeof analyzeText>['scene'] } {
+  const analysis = analyzeText(text);
+  expect(analysis.diagnostics.filter((d) => d.severity === 'error')).toEqual([]);
+  const result = solveScene(analysis.scene)!;
+  return { result, codes: result.diagnostics.map((d) => d.code), scene: analysis.scene };
+}
+
+// Peek's law, parallel-wire constants g0 = 30 kV/cm (peak), c = 0.301 cm^½ (F. W. Peek, Dielectric
+// Phenomena in High-Voltage Engineering, 1929, as server/src/engine/breakdown.ts cites), written out
+// here by hand: g = g0·δ·(1 + c/√(δ·r)), r in cm, g in kV/cm; ×1e5 for V/m.
+const peek = (rCm: number, delta: number) => 30 * delta * (1 + 0.301 / Math.sqrt(delta * rCm)) * 1e5;
+
+// Paschen's law for air, A = 15 /(cm·Torr), B = 365 V/(cm·Torr), γ = 0.01 (Bazelyan and Raizer, Spark
+// Discharge, as breakdown.ts cites): V = B·pd / (ln(A·pd) − ln(ln(1 + 1/γ))), pd in Torr·cm.
+const paschen = (pTorr: number, dCm: number) => (365 * pTorr * dCm) / (Math.log(15 * pTorr * dCm) - Math.log(Math.log(1 + 1 / 0.01)));
+
+describe('corona onset on a lone sphere in air (Peek)', () => {
+  // An isolated sphere of radius a at potential V has the uniform surface field E = V/a (textbook
+  // electrostatics, references.md). With a = 1 cm, Peek's onset is g = 30·(1 + 0.301) = 39.03 kV/cm,
+  // reached at V = g·a = 39.03 kV.
+  const a = 0.01;
+  const g1 = peek(1, 1);
+  const sphere = (volts: number, medium = 'medium air') =>
+    solve(`space axisymmetric\n${medium}\nelectrode s sphere center (0, 0) radius 10 mm potential ${volts} V`);
+
+  it('warns (VS410) just above the onset and not just below, with the margin g/E', () => {
+    for (const [f, warned] of [[0.97, false], [1.03, true]] as const) {
+      const V = f * g1 * a;
+      const { result, codes } = sphere(V);
+      expect(codes.includes('VS410'), `V = ${V} V`).toBe(warned);
+      const b = result.electrodes[0].breakdown!;
+      expect(b.coronaOnset! / g1).toBeCloseTo(1, 9);
+      expect(b.coronaRadius).toBe(a);
+      // margin = g/E with E = V/a; the axisymmetric sphere's peak field is accurate to well under 0.5 %.
+      expect(Math.abs(b.coronaMargin! / (g1 / (V / a)) - 1)).toBeLessThan(0.005);
+    }
+  });
+
+  it('a relative density of 0.8 lowers the onset as the formula says (to about 32.1 kV/cm)', () => {
+    const V = 0.9 * g1 * a; // below the onset at δ = 1, above it at δ = 0.8
+    const g08 = peek(1, 0.8); // 30·0.8·(1 + 0.301/√0.8) = 32.08 kV/cm
+    expect(g08 / 1e5).toBeCloseTo(32.077, 2);
+    const normal = sphere(V);
+    const thin = sphere(V, 'medium air density 0.8');
+    expect(normal.codes).not.toContain('VS410');
+    expect(thin.codes).toContain('VS410');
+    expect(thin.result.electrodes[0].breakdown!.coronaOnset! / g08).toBeCloseTo(1, 9);
+    const message = thin.result.diagnostics.find((d) => d.code === 'VS410')!.message;
+    expect(message).toMatch(/relative density 0\.8/);
+    expect(message).toMatch(/not an allowable/);
+  });
+
+  it('a 3d sphere on a coarse mesh gives the same margin within its accuracy (3 %)', () => {
+    const V = 30e3;
+    const { result, codes } = solve(`medium air\nmesh coarse\nelectrode s sphere center (0, 0, 0) radius 10 mm potential ${V} V`);
+    expect(codes).not.toContain('VS410');
+    const b = result.electrodes[0].breakdown!;
+    expect(b.coronaOnset! / g1).toBeCloseTo(1, 9);
+    expect(Math.abs(b.coronaMargin! / (g1 / (V / a)) - 1)).toBeLessThan(0.03);
+  });
+
+  it('gives no corona figure outside air, and none for a shape that is not round', () => {
+    const oil = sphere(60e3, 'medium oil');
+    expect(oil.codes).not.toContain('VS410');
+    expect(oil.result.electrodes[0].breakdown!.coronaOnset).toBeNull();
+    expect(oil.result.gaps).toEqual([]);
+    const disc = solve('space axisymmetric\nmedium air\nelectrode d disc center (0, 0) radius 10 mm potential 60 kV');
+    expect(disc.result.electrodes[0].breakdown!.coronaOnset).toBeNull();
+    expect(disc.codes).not.toContain('VS410');
+  });
+});
+
+describe('corona onset on the inner conductor of a coaxial pair (planar circle)', () => {
+  // Coaxial cylinders r < R: peak field U/(r·ln(R/r)) on the inner one (textbook electrostatics,
+  // references.md). r = 5 mm: Peek's onset 30·(1 + 0.301/√0.5) = 42.77 kV/cm.
+  it('warns only when U/(r·ln(R/r)) passes Peek at r = 0.5 cm', () => {
+    const r = 0.005, R = 0.05;
+    const g = peek(0.5, 1);
+    const Uon = g * r * Math.log(R / r);
+    for (const [f, warned] of [[0.96, false], [1.04, true]] as const) {
+      const { result, codes } = solve(
+        `space planar\nmedium air\nmesh coarse\nelectrode inner circle center (0, 0) radius 5 mm potential ${f * Uon} V\n` +
+          `electrode outer circle center (0, 0) radius 50 mm hollow potential 0 V`,
+      );
+      expect(codes.includes('VS410')).toBe(warned);
+      const b = result.electrodes[0].breakdown!;
+      expect(Math.abs(b.coronaMargin! * f - 1)).toBeLessThan(0.01);
+    }
+  });
+});
+
+describe('Paschen estimate for a near-uniform gap', () => {
+  // A 10 mm sphere whose surface is 1 mm over a ground plane: d/R = 0.1, a near-uniform gap.
+  // At δ = 1 (760 Torr at 20 °C), pd = 76 Torr·cm and V_b = 365·76/(ln(1140) − ln(ln 101)) ≈ 5.03 kV.
+  const Vb = paschen(760, 0.1);
+  const overPlane = (volts: number, gapMm = 1) =>
+    solve(`space axisymmetric\nmedium air\nelectrode s sphere center (0, ${10 + gapMm}) mm radius 10 mm potential ${volts} V\nground plane at z = 0`);
+
+  it('warns (VS411) when |ΔV| exceeds V_b, not below, and reports the gap and margin', () => {
+    expect(Vb).toBeGreaterThan(5000);
+    expect(Vb).toBeLessThan(5070);
+    for (const [f, warned] of [[0.95, false], [1.05, true]] as const) {
+      const { result, codes } = overPlane(f * Vb);
+      expect(codes.includes('VS411')).toBe(warned);
+      expect(result.gaps).toHaveLength(1);
+      const gap = result.gaps![0];
+      expect(gap.between).toEqual(['s', 'ground plane']);
+      expect(gap.distance).toBeCloseTo(1e-3, 12);
+      expect(gap.paschen / Vb).toBeCloseTo(1, 9);
+      expect(gap.margin! * f).toBeCloseTo(1, 9);
+      // At 1 atm and 1 mm the reduced field (about 66 V/(cm·Torr)) lies outside the fit: flagged.
+      expect(gap.paschenValid).toBe(false);
+      if (warned) expect(result.diagnostics.find((d) => d.code === 'VS411')!.message).toMatch(/outside the range Paschen's constants were fitted over/);
+    }
+  });
+
+  it('does not treat a gap of half the radius as near-uniform', () => {
+    const { result, codes } = overPlane(20e3, 5);
+    expect(result.gaps).toEqual([]);
+    expect(codes).not.toContain('VS411');
+  });
+
+  it('two planar plates 1 mm apart: warns once |ΔV| passes V_b of the gap', () => {
+    for (const [f, warned] of [[0.95, false], [1.05, true]] as const) {
+      const half = (f * Vb) / 2;
+      const { result, codes } = solve(
+        `space planar\nmedium air\nmesh coarse\nelectrode top rect center (0, 5.5) mm size (40, 10) mm potential ${half} V\n` +
+          `electrode bottom rect center (0, -5.5) mm size (40, 10) mm potential ${-half} V`,
+      );
+      expect(codes.includes('VS411')).toBe(warned);
+      expect(result.gaps).toHaveLength(1);
+      expect(result.gaps![0].distance).toBeCloseTo(1e-3, 9);
+      expect(result.gaps![0].voltage).toBeCloseTo(f * Vb, 6);
+    }
+  });
+});
+
+describe('margins in the report', () => {
+  it('prints a breakdown section with the margins, the gap and the caution', () => {
+    const text = 'space axisymmetric\nmedium air\nlimit field 5 kV/mm\nelectrode s sphere center (0, 11) mm radius 10 mm potential 4 kV\nground plane at z = 0';
+    const { result, scene } = solve(text);
+    const b = result.electrodes[0].breakdown!;
+    expect(b.limitMargin! * result.electrodes[0].maxField).toBeCloseTo(5e6, 0);
+    expect(b.strengthMargin! * result.electrodes[0].maxField).toBeCloseTo(3e6, 0);
+    const report = renderReport({ file: 'gap.vscape', scene, result, diagnostics: [] });
+    expect(report).toContain('Breakdown checks');
+    expect(report).toContain('s – ground plane');
+    expect(report).toContain('Design aid, not an allowable; follow applicable standards, local codes and licensed practice.');
+    expect(report).toMatch(/5\.035 kV/);
+  });
+});
