@@ -196,7 +196,7 @@ export interface Analysis {
   scene: Scene;
   diagnostics: Diagnostic[];
   symbols: SymbolTable;
-  /** `sweep` statements: parsed and checked, reserved for parameter sweeps (not part of the Scene). */
+  /** `sweep` statements: parsed and checked, run by `voltscape sweep` (not part of the Scene). */
   sweeps: SweepSpec[];
 }
 
@@ -521,6 +521,7 @@ function analyzeLet(st: State, stmt: Statement) {
   const v = evalExpr(st, stmt.value);
   const value: SymbolEntry['value'] = v ? { si: v.kind === 'scalar' ? v.q.value : v.items.map((q) => q.value), dim: v.kind === 'scalar' ? v.q.dim : (v.items[0]?.dim ?? DIMENSIONLESS) } : null;
   if (!declare(st, 'let', stmt.name, stmt, value)) return;
+  if (!v) st.ctx.failedLets.add(stmt.name.text);
   if (v) {
     const entry = st.symbolByName.get(stmt.name.text)!;
     st.lets.set(stmt.name.text, { value: v, onReference: (r) => entry.references.push(r) });
@@ -669,7 +670,7 @@ function analyzeSweep(st: State, b: Builder, stmt: Statement) {
   }
   target.references.push(stmt.name.range);
   const read = readAttributes(st, stmt, STATEMENT_ATTRIBUTES.sweep, [], 'a sweep', stmt.keyword.range);
-  push(st, 'VS227', stmt.keyword.range, "'sweep' is reserved for parameter sweeps: it is checked but not run yet.");
+  push(st, 'VS227', stmt.keyword.range, `Sweep of '${stmt.name.text}': run it with \`voltscape sweep FILE\`; the live solve uses the let's own value.`);
   if (!complete(read, STATEMENT_ATTRIBUTES.sweep)) return;
   if (!binding || binding.value.kind !== 'scalar') return;
   const dim = binding.value.q.dim;
@@ -898,6 +899,7 @@ export function analyze(parsed: ParsedText, range: Range): Omit<Analysis, 'diagn
     ctx: {
       lets,
       allLetNames: new Set(statements.filter((s) => s.type === 'let' && s.name).map((s) => s.name!.text)),
+      failedLets: new Set(),
       otherNames: new Map(statements.filter((s) => (s.type === 'electrode' || s.type === 'charge' || s.type === 'probe') && s.name).map((s) => [s.name!.text, s.type])),
       diagnostics,
       unitUse: new Map(),

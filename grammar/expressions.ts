@@ -41,6 +41,8 @@ export interface EvalContext {
   lets: ReadonlyMap<string, LetBinding>;
   /** Every let name of the file, so a forward use is told apart from a typo. */
   allLetNames: ReadonlySet<string>;
+  /** Lets defined earlier whose value could not be evaluated (their own error is already reported). */
+  failedLets: Set<string>;
   /** Names of electrodes, charges and probes, which have no value in expressions. */
   otherNames: ReadonlyMap<string, string>;
   diagnostics: Diagnostic[];
@@ -109,6 +111,7 @@ function evaluateName(name: string, range: Range, ctx: EvalContext): EvalValue |
       ? { kind: 'scalar', q: { ...binding.value.q, range }, range }
       : { kind: 'tuple', items: binding.value.items.map((q) => ({ ...q, range })), range };
   }
+  if (ctx.failedLets.has(name)) return null;
   if (ctx.allLetNames.has(name)) {
     ctx.diagnostics.push(diagnostic('VS207', range, `'${name}' is used before its let; move the let above this line.`, { name }));
     return null;
