@@ -123,6 +123,34 @@ describe('Paschen estimate for a near-uniform gap', () => {
     }
   });
 
+  // Sphere of radius a at potential V, centre at height h over a grounded plane: images (Jackson,
+  // Classical Electrodynamics, sec. 2.2–2.3). q1 = 4πε0·a·V at the centre; each charge q_k at height z_k
+  // has a plane image −q_k at −z_k, whose sphere image is q_k·a/(h + z_k) at height h − a²/(h + z_k).
+  // Every charge and image pushes the field at the sphere's lowest point (height h − a) the same way.
+  function peakOverPlane(a: number, h: number, V: number): number {
+    let q = a * V; // in units of 4πε0
+    let z = h;
+    let E = 0;
+    const p = h - a;
+    for (let k = 0; k < 400 && q > 1e-18 * a * V; k++) {
+      E += q / (z - p) ** 2 + q / (z + p) ** 2;
+      const D = h + z;
+      [q, z] = [(q * a) / D, h - (a * a) / D];
+    }
+    return E;
+  }
+
+  it('near-uniform criterion (d ≤ R/5): the solved peak field is 1.07·V/d at R/10 and 1.14·V/d at R/5, as the image series says', () => {
+    for (const [gapMm, factor] of [[1, 1.068], [2, 1.137]] as const) {
+      const V = 1000, d = gapMm * 1e-3, a = 0.01;
+      const series = peakOverPlane(a, a + d, V);
+      expect(series * d / V).toBeCloseTo(factor, 3);
+      const { result } = overPlane(V, gapMm);
+      expect(Math.abs(result.electrodes[0].maxField / series - 1)).toBeLessThan(0.005);
+      expect(result.gaps).toHaveLength(1);
+    }
+  });
+
   it('does not treat a gap of half the radius as near-uniform', () => {
     const { result, codes } = overPlane(20e3, 5);
     expect(result.gaps).toEqual([]);

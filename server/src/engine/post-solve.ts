@@ -34,8 +34,9 @@ export const STANDARD_PRESSURE = 101325;
 
 /**
  * A gap counts as near-uniform when d ≤ NEAR_UNIFORM · (smaller bluntness radius). Our own
- * criterion: at d = R/5 between a sphere and a plane the peak field is within about 10% of V/d
- * (sphere-gap field factors, common practice), so Paschen's uniform-field formula is a fair estimate.
+ * criterion: a sphere of radius R at d = R/5 over a plane has a peak field of 1.14·V/d (1.07·V/d at
+ * R/10), by the image-charge series (Jackson sec. 2.2; tests/breakdown/post-solve.test.ts), so the
+ * field across the gap is near-uniform and Paschen's uniform-field formula is a fair first estimate.
  */
 export const NEAR_UNIFORM = 0.2;
 
