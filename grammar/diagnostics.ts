@@ -72,8 +72,8 @@ export const DIAGNOSTIC_CODES: Record<string, CodeInfo> = {
   VS406: { severity: 'warning', title: 'Second ground plane on the same axis ignored by the solver', example: 'ground plane at z = 0\nground plane at z = 1 m' },
   VS408: { severity: 'warning', title: 'Slice grid reduced to fit the grid-cell limit', example: 'slice xz at y = 0 from (-1, -1) m to (1, 1) m cells 5000' },
   VS409: { severity: 'warning', title: 'Drive equations singular: floating or fixed-charge potentials unresolved', example: '(an electrode with no capacitance; never expected for a meshable scene)' },
-  VS410: { severity: 'warning', title: 'Peak field on a round electrode in air over Peek\u2019s corona onset (design aid, not an allowable; follow applicable standards, local codes and licensed practice)', example: 'medium air\nelectrode a sphere center (0, 0, 0) radius 10 mm potential 45 kV' },
-  VS411: { severity: 'warning', title: 'Voltage across a near-uniform air gap over its Paschen sparking voltage (design aid, not an allowable; follow applicable standards, local codes and licensed practice)', example: 'medium air\nelectrode a sphere center (0, 0, 11) mm radius 10 mm potential 8 kV\nground plane at z = 0' },
+  VS410: { severity: 'warning', title: 'Peak field on a round electrode in air over Peek\u2019s corona onset (design aid, not an allowable; follow applicable standards, local codes and licensed practice)', example: 'space axisymmetric\nmedium air\nelectrode a sphere center (0, 0) radius 10 mm potential 45 kV' },
+  VS411: { severity: 'warning', title: 'Voltage across a near-uniform air gap over its Paschen sparking voltage (design aid, not an allowable; follow applicable standards, local codes and licensed practice)', example: 'space axisymmetric\nmedium air\nelectrode a sphere center (0, 11) mm radius 10 mm potential 8 kV\nground plane at z = 0' },
 
   // ---- VS5xx limits and settings (server/src/lsp) ----
   VS501: { severity: 'warning', title: 'Live solve stopped at the time limit (setting voltscape.maxSolveTime)', example: 'mesh size 0.2 mm\nelectrode a sphere center (0, 0, 0) radius 200 mm potential 1 kV' },

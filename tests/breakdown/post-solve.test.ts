@@ -2,10 +2,11 @@
 // round electrodes in air (VS410), the Paschen estimate for near-uniform gaps (VS411), and the margins
 // in the Result and the report. Scenes are small and mostly 2d, so the suite stays fast.
 import { describe, expect, it } from 'vitest';
-import { analyzeText } from '../../grammar/index';
+import { analyzeText, DIAGNOSTIC_CODES } from '../../grammar/index';
 import { solveScene } from '../../server/src/engine/index';
 import type { Result } from '../../server/src/engine/result';
 import { renderReport } from '../../server/src/cli/report';
+import { roundRadius } from '../../server/src/engine/post-solve';
 
 function solve(text: string): { result: Result; codes: string[]; scene: ReturnType<typeof analyzeText>['scene'] } {
   const analysis = analyzeText(text);
@@ -184,5 +185,33 @@ describe('margins in the report', () => {
     expect(report).toContain('s – ground plane');
     expect(report).toContain('Design aid, not an allowable; follow applicable standards, local codes and licensed practice.');
     expect(report).toMatch(/5\.035 kV/);
+  });
+});
+
+describe('registry examples', () => {
+  it.each(['VS410', 'VS411'])('%s is raised by its own registry example, as a warning with the caution', (code) => {
+    const { result, codes } = solve(DIAGNOSTIC_CODES[code].example);
+    expect(codes).toContain(code);
+    const d = result.diagnostics.find((x) => x.code === code)!;
+    expect(d.severity).toBe('warning');
+    expect(d.message).toMatch(/Design aid, not an allowable; follow applicable standards, local codes and licensed practice\.$/);
+  });
+});
+
+describe('radius of curvature used for Peek', () => {
+  it('is the sphere and cylinder radius, the torus minor radius and the circle radius; other shapes get none', () => {
+    const radiusOf = (text: string) => {
+      const { scene } = analyzeText(text);
+      return roundRadius(scene, 0);
+    };
+    expect(radiusOf('electrode e sphere center (0, 0, 0) radius 7 mm potential 1 kV')).toBeCloseTo(0.007, 12);
+    expect(radiusOf('electrode e cylinder from (0, 0, 0) to (0, 0, 50) mm radius 3 mm potential 1 kV')).toBeCloseTo(0.003, 12);
+    expect(radiusOf('electrode e torus center (0, 0, 0) axis z major 40 mm minor 4 mm potential 1 kV')).toBeCloseTo(0.004, 12);
+    expect(radiusOf('space axisymmetric\nelectrode e torus center (0, 0) major 40 mm minor 6 mm potential 1 kV')).toBeCloseTo(0.006, 12);
+    expect(radiusOf('space axisymmetric\nelectrode e cylinder from (0, 0) to (0, 9) mm radius 2 mm potential 1 kV')).toBeCloseTo(0.002, 12);
+    expect(radiusOf('space planar\nelectrode e circle center (0, 0) radius 5 mm potential 1 kV')).toBeCloseTo(0.005, 12);
+    expect(radiusOf('electrode e box center (0, 0, 0) size (1, 2, 3) mm potential 1 kV')).toBeNull();
+    expect(radiusOf('electrode e plate center (0, 0, 0) size (10, 10) mm normal z potential 1 kV')).toBeNull();
+    expect(radiusOf('space planar\nelectrode e polygon (0, 0) mm (5, 0) mm (0, 5) mm potential 1 kV')).toBeNull();
   });
 });
