@@ -6,7 +6,7 @@ import { analyzeText, DIAGNOSTIC_CODES } from '../../grammar/index';
 import { solveScene } from '../../server/src/engine/index';
 import type { Result } from '../../server/src/engine/result';
 import { renderReport } from '../../server/src/cli/report';
-import { roundRadius } from '../../server/src/engine/post-solve';
+import { nearUniformGaps, roundRadius } from '../../server/src/engine/post-solve';
 
 function solve(text: string): { result: Result; codes: string[]; scene: ReturnType<typeof analyzeText>['scene'] } {
   const analysis = analyzeText(text);
@@ -213,5 +213,31 @@ describe('radius of curvature used for Peek', () => {
     expect(radiusOf('electrode e box center (0, 0, 0) size (1, 2, 3) mm potential 1 kV')).toBeNull();
     expect(radiusOf('electrode e plate center (0, 0, 0) size (10, 10) mm normal z potential 1 kV')).toBeNull();
     expect(radiusOf('space planar\nelectrode e polygon (0, 0) mm (5, 0) mm (0, 5) mm potential 1 kV')).toBeNull();
+  });
+});
+
+describe('which gaps are near-uniform (geometry only, no solve)', () => {
+  it('finds plate–plate, cylinder–cylinder and torus–disc gaps at their exact widths, and leaves out a gap split by a third electrode', () => {
+    const { scene } = analyzeText(
+      [
+        'medium air',
+        'electrode p1 plate center (0, 0, 1) mm size (100, 100) mm normal z potential 1 kV',
+        'electrode p2 plate center (0, 0, -1) mm size (100, 100) mm normal z potential -1 kV',
+        'electrode c1 cylinder from (-50, 0, 200) mm to (50, 0, 200) mm radius 10 mm potential 3 kV',
+        'electrode c2 cylinder from (-50, 0, 221) mm to (50, 0, 221) mm radius 10 mm potential 0 V',
+        'electrode t torus center (0, 0, 400) mm axis z major 40 mm minor 10 mm potential 2 kV',
+        'electrode d disc center (0, 0, 411.5) mm normal z radius 60 mm potential 0 V',
+        'ground plane at z = -3 mm',
+      ].join('\n'),
+    );
+    const potentials = scene.electrodes.map((e) => ({ potential: e.drive.kind === 'potential' ? e.drive.value : 0 }));
+    const gaps = nearUniformGaps(scene, potentials as never).map((g) => [g.between.join('|'), Number((g.distance * 1e3).toFixed(9)), g.voltage]);
+    // p1 is 4 mm over the ground plane, but p2 lies between them: that gap is split and not listed.
+    expect(gaps).toEqual([
+      ['p1|p2', 2, 2000],
+      ['c1|c2', 1, 3000],
+      ['t|d', 1.5, 2000],
+      ['p2|ground plane', 2, 1000],
+    ]);
   });
 });

@@ -184,41 +184,70 @@ export function postSolveChecks(scene: Scene, electrodes: readonly ElectrodeResu
   return { diagnostics, breakdown, gaps };
 }
 
-/** Near-uniform gaps between electrodes and to the ground planes, with their Paschen estimates. */
+/**
+ * Near-uniform gaps between electrodes and to the ground planes, with their Paschen estimates.
+ * A gap of width d between A and B is left out when a third electrode lies closer than d to both:
+ * it sits in the gap and splits it (its own gaps are then listed instead).
+ */
 export function nearUniformGaps(scene: Scene, electrodes: readonly ElectrodeResult[]): GapResult[] {
   const pressure = scene.medium.density * STANDARD_PRESSURE;
-  const out: GapResult[] = [];
-  const add = (a: string, b: string, distance: number, voltage: number) => {
-    const p = paschenVoltage(pressure, distance);
-    out.push({ between: [a, b], distance, voltage, paschen: p.voltage, paschenValid: p.valid, margin: factor(p.voltage, voltage) });
-  };
   const K = Math.min(scene.electrodes.length, electrodes.length);
   const blunt = scene.electrodes.map((_, i) => bluntnessRadius(scene, i));
   const bounds = scene.electrodes.map((_, i) => electrodeBounds(scene, i));
+  /** Distance between electrodes i and j when it is below `within`, else Infinity. */
+  const between = (i: number, j: number, within: number): number => {
+    if (!(within > 0) || boundsApart(bounds[i], bounds[j]) > within) return Infinity;
+    const d = electrodeGap(scene, i, j, within, -Infinity);
+    return d <= within ? d : Infinity;
+  };
+  // A ground plane's distance from electrode i (NaN when the electrode crosses it: a geometry error).
+  const planeDistance = (i: number, k: number, at: number): number => {
+    const lo = bounds[i].min[k] - at, hi = bounds[i].max[k] - at;
+    return lo > 0 ? lo : hi < 0 ? -hi : NaN;
+  };
+  const planes: { k: number; at: number }[] = [];
+  const used = new Set<string>();
+  for (const g of scene.groundPlanes) {
+    const k = groundAxis(scene, g.axis);
+    if (k < 0 || used.has(g.axis)) continue; // the solver uses the first plane per axis
+    used.add(g.axis);
+    planes.push({ k, at: g.at });
+  }
+  // Candidates: j ≥ 0 an electrode, j < 0 the plane −j − 1.
+  const candidates: { i: number; j: number; d: number }[] = [];
   for (let j = 0; j < K; j++) {
     for (let i = 0; i < j; i++) {
       const ri = blunt[i], rj = blunt[j];
       if (ri === null || rj === null) continue;
-      const threshold = NEAR_UNIFORM * Math.min(ri, rj);
-      if (!(threshold > 0) || boundsApart(bounds[i], bounds[j]) > threshold) continue;
-      const d = electrodeGap(scene, i, j, threshold, -Infinity);
-      if (!(d > 0) || d > threshold) continue;
-      add(scene.electrodes[i].name, scene.electrodes[j].name, d, Math.abs(electrodes[i].potential - electrodes[j].potential));
+      const d = between(i, j, NEAR_UNIFORM * Math.min(ri, rj));
+      if (d > 0 && Number.isFinite(d)) candidates.push({ i, j, d });
     }
   }
-  const used = new Set<string>();
-  for (const g of scene.groundPlanes) {
-    const k = groundAxis(scene, g.axis);
-    if (k < 0 || used.has(g.axis)) continue;
-    used.add(g.axis);
+  planes.forEach((plane, n) => {
     for (let i = 0; i < K; i++) {
       const r = blunt[i];
-      if (r === null) continue;
-      const lo = bounds[i].min[k] - g.at, hi = bounds[i].max[k] - g.at;
-      const d = lo > 0 ? lo : hi < 0 ? -hi : NaN; // an electrode across the plane is a geometry error
-      if (!(d > 0) || d > NEAR_UNIFORM * r) continue;
-      add(scene.electrodes[i].name, GROUND, d, Math.abs(electrodes[i].potential));
+      const d = planeDistance(i, plane.k, plane.at);
+      if (r !== null && d > 0 && d <= NEAR_UNIFORM * r) candidates.push({ i, j: -n - 1, d });
     }
+  });
+  const out: GapResult[] = [];
+  for (const { i, j, d } of candidates) {
+    const split = scene.electrodes.some((_, c) => {
+      if (c === i || c === j || c >= K) return false;
+      const toOther = j >= 0 ? between(j, c, d) : planeDistance(c, planes[-j - 1].k, planes[-j - 1].at);
+      return toOther < d && between(i, c, d) < d;
+    });
+    if (split) continue;
+    const voltage = Math.abs(electrodes[i].potential - (j >= 0 ? electrodes[j].potential : 0));
+    const p = paschenVoltage(pressure, d);
+    out.push({
+      between: [scene.electrodes[i].name, j >= 0 ? scene.electrodes[j].name : GROUND],
+      distance: d,
+      voltage,
+      paschen: p.voltage,
+      paschenValid: p.valid,
+      margin: factor(p.voltage, voltage),
+    });
   }
   return out;
 }
