@@ -18,7 +18,7 @@ const range = {
 
 export const resultSchema = {
   type: 'object',
-  required: ['format', 'ok', 'file', 'space', 'electrodes', 'capacitance', 'energy', 'probes', 'diagnostics', 'stats', 'slices'],
+  required: ['format', 'ok', 'file', 'space', 'electrodes', 'capacitance', 'energy', 'gaps', 'probes', 'diagnostics', 'stats', 'slices'],
   properties: {
     format: { const: 'voltscape-result/1' },
     ok: { const: true },
@@ -40,6 +40,22 @@ export const resultSchema = {
           capacitance: num,
           capacitanceConvergence: convergence,
           maxFieldConvergence: convergence,
+          breakdown: {
+            anyOf: [
+              { type: 'null' },
+              {
+                type: 'object',
+                required: ['limitMargin', 'strengthMargin', 'coronaOnset', 'coronaRadius', 'coronaMargin'],
+                properties: {
+                  limitMargin: { type: ['number', 'null'] },
+                  strengthMargin: { type: ['number', 'null'] },
+                  coronaOnset: { type: ['number', 'null'] },
+                  coronaRadius: { type: ['number', 'null'] },
+                  coronaMargin: { type: ['number', 'null'] },
+                },
+              },
+            ],
+          },
         },
       },
     },
@@ -53,6 +69,21 @@ export const resultSchema = {
       },
     },
     energy: num,
+    gaps: {
+      type: 'array',
+      items: {
+        type: 'object',
+        required: ['between', 'distance', 'voltage', 'paschen', 'paschenValid', 'margin'],
+        properties: {
+          between: { type: 'array', items: { type: 'string' }, minItems: 2, maxItems: 2 },
+          distance: num,
+          voltage: num,
+          paschen: num,
+          paschenValid: { type: 'boolean' },
+          margin: { type: ['number', 'null'] },
+        },
+      },
+    },
     probes: {
       type: 'array',
       items: {

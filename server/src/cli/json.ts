@@ -41,6 +41,7 @@ export function resultJson({ file, scene, result, diagnostics, grids }: JsonInpu
       maxFieldConvergence: e.maxFieldConvergence,
       capacitance: e.capacitance,
       capacitanceConvergence: e.capacitanceConvergence,
+      breakdown: e.breakdown ?? null,
     })),
     capacitance: { names: result.capacitance.names, matrix: result.capacitance.matrix, asymmetry: result.capacitance.asymmetry },
     energy: result.energy,
@@ -49,6 +50,7 @@ export function resultJson({ file, scene, result, diagnostics, grids }: JsonInpu
       points: p.points.map((q) => ({ at: q.at, potential: q.potential, field: q.field, fieldMagnitude: q.fieldMagnitude })),
     })),
     limit: scene.limit ? { field: scene.limit.field, peak, broken: peak > scene.limit.field } : null,
+    gaps: result.gaps ?? [],
     slices: result.slices.map((s) => {
       const out: Record<string, unknown> = {
         plane: s.plane,
