@@ -37,15 +37,7 @@ export const TREECODE_ABOVE = 4e6;
 export function evaluateProbes(scene: Scene3d, state: FieldState3d, potentials: readonly number[]): ProbeResult[] {
   const behind = behindGround(scene);
   return scene.probes.map((p) => {
-    const at: number[][] = [];
-    if (p.kind === 'point') at.push([...p.at]);
-    else {
-      const n = Math.max(2, Math.floor(p.samples));
-      for (let i = 0; i < n; i++) {
-        const t = i / (n - 1);
-        at.push([0, 1, 2].map((k) => p.from[k] + t * (p.to[k] - p.from[k])));
-      }
-    }
+    const at = probePoints(p);
     return {
       name: p.name,
       points: at.map((q) => {
@@ -57,6 +49,13 @@ export function evaluateProbes(scene: Scene3d, state: FieldState3d, potentials: 
       }),
     };
   });
+}
+
+/** The points of a probe: the point itself, or `samples` points evenly along a line. */
+export function probePoints(p: Scene3d['probes'][number]): number[][] {
+  if (p.kind === 'point') return [[...p.at]];
+  const n = Math.max(2, Math.floor(p.samples));
+  return Array.from({ length: n }, (_, i) => [0, 1, 2].map((k) => p.from[k] + (i / (n - 1)) * (p.to[k] - p.from[k])));
 }
 
 /** Grid dimensions of a slice: `cells` along the longer side, square cells, at most maxCells in all. */
@@ -88,52 +87,8 @@ export function evaluateSlices(
 ): SliceResult[] | null {
   const out: SliceResult[] = [];
   for (const slice of scene.slices) {
-    const { nu, nv, du, dv, reduced } = sliceGrid(slice, maxGridCells);
-    if (reduced) {
-      diagnostics.push(
-        diagnostic('VS408', slice.range, `Slice grid reduced to ${nu} × ${nv} cells to stay within the grid-cell limit (${maxGridCells}).`),
-      );
-    }
-    const [iu, iv, iw] = sliceAxes(slice.plane);
-    const u0 = Math.min(slice.from[0], slice.to[0]);
-    const v0 = Math.min(slice.from[1], slice.to[1]);
-    const count = nu * nv;
-    const potential = new Float64Array(count);
-    const fieldU = new Float32Array(count);
-    const fieldV = new Float32Array(count);
-    const fieldMagnitude = new Float32Array(count);
-    const inside = new Int16Array(count);
+    const { outside, centre, store, shift, result, potential, fieldMagnitude } = sliceLayout(scene, slice, maxGridCells, potentials, diagnostics);
     const p = [0, 0, 0];
-    p[iw] = slice.at;
-    // Cells outside every conductor, and their centres.
-    const outside: number[] = [];
-    const behind = behindGround(scene);
-    for (let j = 0; j < nv; j++) {
-      for (let i = 0; i < nu; i++) {
-        const idx = j * nu + i;
-        p[iu] = u0 + (i + 0.5) * du;
-        p[iv] = v0 + (j + 0.5) * dv;
-        const k = insideElectrode(scene, p);
-        inside[idx] = k;
-        if (k >= 0) {
-          potential[idx] = potentials[k];
-          fieldU[idx] = fieldV[idx] = fieldMagnitude[idx] = NaN;
-        } else if (behind(p)) {
-          potential[idx] = fieldU[idx] = fieldV[idx] = fieldMagnitude[idx] = 0;
-        } else outside.push(idx);
-      }
-    }
-    const centre = (idx: number, out: number[]) => {
-      out[iw] = slice.at;
-      out[iu] = u0 + ((idx % nu) + 0.5) * du;
-      out[iv] = v0 + (Math.floor(idx / nu) + 0.5) * dv;
-    };
-    const store = (idx: number, f: readonly number[]) => {
-      potential[idx] = f[0];
-      fieldU[idx] = f[1 + iu];
-      fieldV[idx] = f[1 + iv];
-      fieldMagnitude[idx] = Math.hypot(f[1], f[2], f[3]);
-    };
     const tree = outside.length * state.sys.n > TREECODE_ABOVE ? panelTreecode(state) : null;
     if (tree) {
       // Panels by the treecode, free charges directly (a state with the panels left out).
@@ -163,27 +118,10 @@ export function evaluateSlices(
     for (const idx of outside) {
       if (Number.isFinite(potential[idx]) && Number.isFinite(fieldMagnitude[idx])) continue;
       centre(idx, p);
-      p[iu] += 0.25 * du;
-      p[iv] += 0.25 * dv;
+      shift(p);
       store(idx, potentialAndField(state, p[0], p[1], p[2], 'grid'));
     }
-    out.push({
-      plane: slice.plane,
-      at: slice.at,
-      nu,
-      nv,
-      u0,
-      v0,
-      du,
-      dv,
-      potential,
-      fieldU,
-      fieldV,
-      fieldMagnitude,
-      inside,
-      outlines: sliceOutlines(scene, slice),
-      groundLines: groundLines(scene, slice),
-    });
+    out.push(result);
   }
   return out;
 }
@@ -192,3 +130,91 @@ export function evaluateSlices(
 function panelTreecode(state: FieldState3d): FieldEvaluator {
   return new FieldEvaluator(state.sys.mesh, state.x, INV_4PI, state.images, {}, state.sys.panels);
 }
+
+/** A slice's grid before any field is evaluated: cells inside conductors and behind ground planes filled, the rest listed. */
+export interface SliceLayout {
+  nu: number;
+  nv: number;
+  /** Cells outside every conductor and ground plane, row-major indices. */
+  outside: number[];
+  centre(idx: number, out: number[]): void;
+  /** Moves a point a quarter cell along both grid axes (off a free charge). */
+  shift(p: number[]): void;
+  /** Writes [φ, Ex, Ey, Ez] of a cell. */
+  store(idx: number, f: readonly number[]): void;
+  potential: Float64Array;
+  fieldMagnitude: Float32Array;
+  result: SliceResult;
+}
+
+export function sliceLayout(scene: Scene3d, slice: Slice, maxGridCells: number, potentials: readonly number[], diagnostics: Diagnostic[]): SliceLayout {
+  const { nu, nv, du, dv, reduced } = sliceGrid(slice, maxGridCells);
+  if (reduced) {
+    diagnostics.push(
+      diagnostic('VS408', slice.range, `Slice grid reduced to ${nu} × ${nv} cells to stay within the grid-cell limit (${maxGridCells}).`),
+    );
+  }
+  const [iu, iv, iw] = sliceAxes(slice.plane);
+  const u0 = Math.min(slice.from[0], slice.to[0]);
+  const v0 = Math.min(slice.from[1], slice.to[1]);
+  const count = nu * nv;
+  const potential = new Float64Array(count);
+  const fieldU = new Float32Array(count);
+  const fieldV = new Float32Array(count);
+  const fieldMagnitude = new Float32Array(count);
+  const inside = new Int16Array(count);
+  const p = [0, 0, 0];
+  p[iw] = slice.at;
+  // Cells outside every conductor, and their centres.
+  const outside: number[] = [];
+  const behind = behindGround(scene);
+  for (let j = 0; j < nv; j++) {
+    for (let i = 0; i < nu; i++) {
+      const idx = j * nu + i;
+      p[iu] = u0 + (i + 0.5) * du;
+      p[iv] = v0 + (j + 0.5) * dv;
+      const k = insideElectrode(scene, p);
+      inside[idx] = k;
+      if (k >= 0) {
+        potential[idx] = potentials[k];
+        fieldU[idx] = fieldV[idx] = fieldMagnitude[idx] = NaN;
+      } else if (behind(p)) {
+        potential[idx] = fieldU[idx] = fieldV[idx] = fieldMagnitude[idx] = 0;
+      } else outside.push(idx);
+    }
+  }
+  const centre = (idx: number, out: number[]) => {
+    out[iw] = slice.at;
+    out[iu] = u0 + ((idx % nu) + 0.5) * du;
+    out[iv] = v0 + (Math.floor(idx / nu) + 0.5) * dv;
+  };
+  const store = (idx: number, f: readonly number[]) => {
+    potential[idx] = f[0];
+    fieldU[idx] = f[1 + iu];
+    fieldV[idx] = f[1 + iv];
+    fieldMagnitude[idx] = Math.hypot(f[1], f[2], f[3]);
+  };
+  const shift = (q: number[]) => {
+    q[iu] += 0.25 * du;
+    q[iv] += 0.25 * dv;
+  };
+  const result: SliceResult = {
+    plane: slice.plane,
+    at: slice.at,
+    nu,
+    nv,
+    u0,
+    v0,
+    du,
+    dv,
+    potential,
+    fieldU,
+    fieldV,
+    fieldMagnitude,
+    inside,
+    outlines: sliceOutlines(scene, slice),
+    groundLines: groundLines(scene, slice),
+  };
+  return { nu, nv, outside, centre, shift, store, potential, fieldMagnitude, result };
+}
+

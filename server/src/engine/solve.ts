@@ -24,6 +24,7 @@ import { chargePotential, chargeSamples, chargeTotal } from './kernels/free-char
 import { chooseSolver, DENSE_MAX_UNKNOWNS, needsDenseMatrix, type SolverKind } from './linear/solver';
 import { meshForScene } from './mesh/index';
 import { postSolveChecks } from './post-solve';
+import { superposedProbes, superposedSlices, superposedSurfaceFields, useSuperposition } from './superpose';
 import type { Mesh } from './mesh/types';
 import type { Convergence, ElectrodeResult, Result } from './result';
 
@@ -102,6 +103,8 @@ interface LevelOutcome {
   /** Peak surface field per electrode: value and panel index (−1 if it has no panels). */
   peak: { value: number; panel: number }[];
   singular: boolean;
+  /** True when fields come from stored per-solution values (superpose.ts): a reused level with new drives. */
+  superposed: boolean;
   /** Milliseconds spent on this level in this solve (empty when everything came from the cache). */
   timings: Record<string, number>;
 }
@@ -140,7 +143,10 @@ function solveAt(scene: Scene3d, mesh: Mesh, key: string, images: Image[], o: So
     for (let j = 0; j < x.length; j++) x[j] += inv * f[j];
   }
   const state: FieldState3d = { sys: level.sys, x, charges: scene.charges, images, permittivity: scene.medium.permittivity };
-  const field = surfaceFields(state);
+  // A reused level with new drives or free charges: fields by superposition of stored values.
+  const signature = JSON.stringify([drives.potentials, level.free?.key ?? null, scene.medium.permittivity]);
+  const superposed = useSuperposition(level, signature);
+  const field = superposed ? superposedSurfaceFields(scene, level, images, x, drives.potentials) : surfaceFields(state);
   const peak = Array.from({ length: K }, () => ({ value: 0, panel: -1 }));
   for (let j = 0; j < field.length; j++) {
     const p = peak[mesh.electrode[j]];
@@ -159,6 +165,7 @@ function solveAt(scene: Scene3d, mesh: Mesh, key: string, images: Image[], o: So
     field,
     peak,
     singular: drives.singular,
+    superposed,
     timings,
   };
 }
@@ -308,12 +315,15 @@ export function solve3d(scene: Scene3d, o: Solve3dOptions): Result | null {
   const W = energy(scene, fine, images);
   timings.energy = performance.now() - t;
   t = performance.now();
-  const probes = evaluateProbes(scene, fine.state, fine.potentials);
+  const probes = fine.superposed ? superposedProbes(scene, fine.level, images, fine.potentials) : evaluateProbes(scene, fine.state, fine.potentials);
   timings.probes = performance.now() - t;
   t = performance.now();
-  const slices = evaluateSlices(scene, fine.state, fine.potentials, o.maxGridCells, diagnostics, o.isCancelled);
+  const slices = fine.superposed
+    ? superposedSlices(scene, fine.level, images, fine.potentials, o.maxGridCells, diagnostics, o.isCancelled)
+    : evaluateSlices(scene, fine.state, fine.potentials, o.maxGridCells, diagnostics, o.isCancelled);
   if (!slices) return null;
-  timings.slices = performance.now() - t;
+  // Named apart when the grids came from stored per-solution values (superpose.ts).
+  timings[fine.superposed ? 'slicesSuperposed' : 'slices'] = performance.now() - t;
 
   // ---- post-solve checks (post-solve.ts): floating, limit, strength, corona, Paschen ----
   const freeAbs = scene.charges.reduce((s, c) => s + Math.abs(chargeTotal(c)), 0);

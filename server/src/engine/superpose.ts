@@ -1,0 +1,269 @@
+// Drive-only edits by superposition. The potential and field anywhere are linear in the drives:
+//   φ(r) = Σ_k V_k·φ_k(r) + φ_f(r)/εr,
+// with φ_k the field of electrode k's unit solution (k at 1 V, the rest at 0; no free charges) and
+// φ_f that of the free charges at εr = 1 (their direct field with images plus the panels' induced
+// response), and the same for E. (Linearity of the Laplace problem with the drives of drives.ts; the
+// treecode and the far-field rule are linear in the densities too, since their choices depend on
+// geometry alone.) So per cached level and per slice grid, probe set and thin-panel set we keep one
+// set of values per unit solution and one for the free charges; a later edit that changes only
+// drives (or only free charges) then sums K + 1 stored grids instead of evaluating the field again.
+//
+// The values are identical, up to rounding, to a from-scratch evaluation (evaluate.ts), which sums
+// the same contributions once: the same points, the same evaluator (direct, grid rule, treecode),
+// the same fills inside conductors and behind ground planes, the same quarter-cell shift at a free
+// charge. Building the stored values costs about K + 1 evaluations, so it is done only when a
+// level is reused with new drives (the first solve of a geometry pays nothing extra).
+import { insideElectrode } from '../../../grammar/geometry';
+import type { Diagnostic, Scene3d } from '../../../grammar/scene';
+import { addFreeCharges, potentialAndField, type FieldState3d } from './bem3d/field';
+import type { FreeSolution, Level3d } from './bem3d/level';
+import { INV_4PI } from './bem3d/system';
+import type { Image } from './bem3d/images';
+import { behindGround, probePoints, sliceLayout, TREECODE_ABOVE, type SliceLayout } from './evaluate';
+import { FieldEvaluator } from './fast/field-evaluator';
+import type { ProbeResult, SliceResult } from './result';
+
+/** Stored values of one set of points: [φ, Ex, Ey, Ez] per point, one array per unit solution and one for the free charges. */
+interface Basis {
+  units: Float64Array[];
+  free: { of: FreeSolution; values: Float64Array } | null;
+}
+
+interface SliceBasis extends Basis {
+  /** The outside cells the values belong to; a different set (masks changed) rebuilds. */
+  outside: Int32Array;
+  /** Cells (positions in layout.outside) whose centre falls on a free charge: values a quarter cell off, per solution. */
+  shifted: { m: number; units: number[][]; free: number[] }[];
+}
+
+interface LevelStore {
+  /** The drives of the last use of this level: stored values are built when they change. */
+  signature: string | null;
+  slices: Map<string, SliceBasis>;
+  probes: Map<string, Basis>;
+  thin: Basis | null;
+}
+
+const stores = new WeakMap<Level3d, LevelStore>();
+
+function storeOf(level: Level3d): LevelStore {
+  let s = stores.get(level);
+  if (!s) {
+    s = { signature: null, slices: new Map(), probes: new Map(), thin: null };
+    stores.set(level, s);
+  }
+  return s;
+}
+
+/**
+ * Whether this use of a level should go through stored values: true once the level is reused with
+ * drives or free charges other than at its previous use (a live drive edit), or when values are
+ * already stored. Call once per use of a level, with everything that the result depends on besides
+ * the geometry.
+ */
+export function useSuperposition(level: Level3d, signature: string): boolean {
+  const s = storeOf(level);
+  const changed = s.signature !== null && s.signature !== signature;
+  s.signature = signature;
+  return changed || s.slices.size > 0 || s.probes.size > 0 || s.thin !== null;
+}
+
+function unitState(level: Level3d, x: Float64Array, images: Image[], charges: Scene3d['charges']): FieldState3d {
+  return { sys: level.sys, x, charges, images, permittivity: 1 };
+}
+
+/** [φ, Ex, Ey, Ez] of one state at m points, by the evaluator evaluateSlices would choose for that many points. */
+function valuesAt(state: FieldState3d, pts: Float64Array, tree: FieldEvaluator | null): Float64Array {
+  const m = pts.length / 3;
+  const out = new Float64Array(4 * m);
+  if (tree) {
+    tree.setDensities(state.x);
+    const panels = tree.evaluate(pts, 0.3);
+    const free = new Float64Array(4);
+    for (let i = 0; i < m; i++) {
+      free.fill(0);
+      addFreeCharges(state, pts[3 * i], pts[3 * i + 1], pts[3 * i + 2], free);
+      out[4 * i] = panels.potential[i] + free[0];
+      for (let c = 0; c < 3; c++) out[4 * i + 1 + c] = panels.field[3 * i + c] - free[1 + c];
+    }
+    return out;
+  }
+  for (let i = 0; i < m; i++) out.set(potentialAndField(state, pts[3 * i], pts[3 * i + 1], pts[3 * i + 2], 'grid'), 4 * i);
+  return out;
+}
+
+/** Σ_k V_k·units_k[i] + free[i]/εr into f[0..3]. */
+function combine(units: readonly (Float64Array | number[])[], free: Float64Array | number[] | null, at: number, potentials: readonly number[], permittivity: number, f: number[]): void {
+  f[0] = f[1] = f[2] = f[3] = 0;
+  units.forEach((u, k) => {
+    const v = potentials[k];
+    if (v === 0) return;
+    for (let c = 0; c < 4; c++) f[c] += v * u[at + c];
+  });
+  if (free) for (let c = 0; c < 4; c++) f[c] += free[at + c] / permittivity;
+}
+
+/** Slices of a solved level by superposition (see the header); null when cancelled. */
+export function superposedSlices(
+  scene: Scene3d,
+  level: Level3d,
+  images: Image[],
+  potentials: readonly number[],
+  maxGridCells: number,
+  diagnostics: Diagnostic[],
+  isCancelled?: () => boolean,
+): SliceResult[] | null {
+  const store = storeOf(level);
+  const out: SliceResult[] = [];
+  const eps = scene.medium.permittivity;
+  for (const slice of scene.slices) {
+    const L = sliceLayout(scene, slice, maxGridCells, potentials, diagnostics);
+    const key = JSON.stringify([slice.plane, slice.at, slice.from, slice.to, L.nu, L.nv]);
+    const basis = sliceBasis(scene, level, images, L, key, store, isCancelled);
+    if (!basis) return null;
+    const f = [0, 0, 0, 0];
+    const shifted = new Map(basis.shifted.map((s) => [s.m, s]));
+    for (let m = 0; m < L.outside.length; m++) {
+      const s = shifted.get(m);
+      if (s) combine(s.units, s.free, 0, potentials, eps, f);
+      else combine(basis.units, basis.free?.values ?? null, 4 * m, potentials, eps, f);
+      L.store(L.outside[m], f);
+    }
+    out.push(L.result);
+  }
+  return out;
+}
+
+function sliceBasis(
+  scene: Scene3d,
+  level: Level3d,
+  images: Image[],
+  L: SliceLayout,
+  key: string,
+  store: LevelStore,
+  isCancelled?: () => boolean,
+): SliceBasis | null {
+  let basis = store.slices.get(key);
+  if (basis && !sameCells(basis.outside, L.outside)) basis = undefined;
+  const pts = new Float64Array(3 * L.outside.length);
+  const p = [0, 0, 0];
+  L.outside.forEach((idx, m) => {
+    L.centre(idx, p);
+    pts.set(p, 3 * m);
+  });
+  const tree = L.outside.length * level.sys.n > TREECODE_ABOVE ? new FieldEvaluator(level.sys.mesh, level.unit[0] ?? new Float64Array(level.sys.n), INV_4PI, images, {}, level.sys.panels) : null;
+  if (!basis) {
+    const units: Float64Array[] = [];
+    for (const u of level.unit) {
+      if (isCancelled?.()) return null;
+      units.push(valuesAt(unitState(level, u, images, []), pts, tree));
+    }
+    basis = { outside: Int32Array.from(L.outside), units, free: null, shifted: [] };
+    store.slices.set(key, basis);
+    // A few geometries' slices at most: drop the oldest.
+    while (store.slices.size > 8) store.slices.delete(store.slices.keys().next().value as string);
+  }
+  const free = level.free;
+  if (!free) {
+    basis.free = null;
+    basis.shifted = [];
+  } else if (basis.free?.of !== free) {
+    if (isCancelled?.()) return null;
+    const fs = unitState(level, free.x, images, scene.charges);
+    const values = valuesAt(fs, pts, tree);
+    basis.free = { of: free, values };
+    // A cell centre on a point or line charge: every solution's value a quarter cell off it.
+    basis.shifted = [];
+    for (let m = 0; m < L.outside.length; m++) {
+      let finite = true;
+      for (let c = 0; c < 4; c++) finite &&= Number.isFinite(values[4 * m + c]);
+      if (finite) continue;
+      L.centre(L.outside[m], p);
+      L.shift(p);
+      basis.shifted.push({
+        m,
+        units: level.unit.map((u) => potentialAndField(unitState(level, u, images, []), p[0], p[1], p[2], 'grid')),
+        free: potentialAndField(fs, p[0], p[1], p[2], 'grid'),
+      });
+    }
+  }
+  return basis;
+}
+
+function sameCells(a: Int32Array, b: readonly number[]): boolean {
+  if (a.length !== b.length) return false;
+  for (let i = 0; i < a.length; i++) if (a[i] !== b[i]) return false;
+  return true;
+}
+
+/** Probe points by superposition: the precise sums per solution, stored per probe set. */
+export function superposedProbes(scene: Scene3d, level: Level3d, images: Image[], potentials: readonly number[]): ProbeResult[] {
+  const store = storeOf(level);
+  const eps = scene.medium.permittivity;
+  const layout = probeLayout(scene);
+  const key = JSON.stringify(layout.map((p) => p.at));
+  let basis = store.probes.get(key);
+  if (!basis) {
+    basis = { units: level.unit.map((u) => preciseAt(unitState(level, u, images, []), layout)), free: null };
+    store.probes.set(key, basis);
+    while (store.probes.size > 8) store.probes.delete(store.probes.keys().next().value as string);
+  }
+  const free = level.free;
+  if (!free) basis.free = null;
+  else if (basis.free?.of !== free) basis.free = { of: free, values: preciseAt(unitState(level, free.x, images, scene.charges), layout) };
+  const f = [0, 0, 0, 0];
+  const behind = behindGround(scene);
+  const points = layout.map((p, i) => {
+    const k = insideElectrode(scene, p.at);
+    if (k >= 0) return { at: p.at, potential: potentials[k], field: [0, 0, 0], fieldMagnitude: 0 };
+    if (behind(p.at)) return { at: p.at, potential: 0, field: [0, 0, 0], fieldMagnitude: 0 };
+    combine(basis.units, basis.free?.values ?? null, 4 * i, potentials, eps, f);
+    return { at: p.at, potential: f[0], field: [f[1], f[2], f[3]], fieldMagnitude: Math.hypot(f[1], f[2], f[3]) };
+  });
+  return scene.probes.map((probe, pi) => ({ name: probe.name, points: points.filter((_, i) => layout[i].probe === pi) }));
+}
+
+/** Every probe point, in order, with its probe's index. */
+function probeLayout(scene: Scene3d): { probe: number; at: number[] }[] {
+  return scene.probes.flatMap((p, probe) => probePoints(p).map((at) => ({ probe, at })));
+}
+
+/** [φ, Ex, Ey, Ez] at each probe point, by the precise sums (as evaluateProbes). */
+function preciseAt(state: FieldState3d, layout: { at: number[] }[]): Float64Array {
+  const out = new Float64Array(4 * layout.length);
+  layout.forEach((p, i) => out.set(potentialAndField(state, p.at[0], p.at[1], p.at[2], 'precise'), 4 * i));
+  return out;
+}
+
+/**
+ * Surface field per panel (as bem3d/field.ts surfaceFields) by superposition: the normal field at
+ * thin panels' centroids is stored per solution; closed panels read |x| directly.
+ */
+export function superposedSurfaceFields(scene: Scene3d, level: Level3d, images: Image[], x: Float64Array, potentials: readonly number[]): Float64Array {
+  const store = storeOf(level);
+  const { mesh } = level.sys;
+  const n = level.sys.n;
+  const thin: number[] = [];
+  for (let j = 0; j < n; j++) if (mesh.thin[j]) thin.push(j);
+  const c = mesh.centroid;
+  const normalField = (state: FieldState3d) => {
+    const out = new Float64Array(4 * thin.length);
+    thin.forEach((j, i) => {
+      const [, ex, ey, ez] = potentialAndField(state, c[3 * j], c[3 * j + 1], c[3 * j + 2]);
+      out[4 * i] = ex * mesh.normal[3 * j] + ey * mesh.normal[3 * j + 1] + ez * mesh.normal[3 * j + 2];
+    });
+    return out;
+  };
+  if (!store.thin) store.thin = { units: level.unit.map((u) => normalField(unitState(level, u, images, []))), free: null };
+  const free = level.free;
+  if (!free) store.thin.free = null;
+  else if (store.thin.free?.of !== free) store.thin.free = { of: free, values: normalField(unitState(level, free.x, images, scene.charges)) };
+  const E = new Float64Array(n);
+  for (let j = 0; j < n; j++) E[j] = Math.abs(x[j]);
+  const f = [0, 0, 0, 0];
+  thin.forEach((j, i) => {
+    combine(store.thin!.units, store.thin!.free?.values ?? null, 4 * i, potentials, scene.medium.permittivity, f);
+    E[j] = Math.abs(x[j]) / 2 + Math.abs(f[0]);
+  });
+  return E;
+}
