@@ -187,8 +187,8 @@ function slice(threads: number): void {
 }
 
 function threadSpeedup(threads: number): void {
-  console.log('\n-- block filling on all threads against one (4k panels) --');
-  const mesh = scene(4000);
+  console.log('\n-- block filling on all threads against one (16k panels) --');
+  const mesh = scene(16000);
   const one = runFast(mesh, 1);
   const all = runFast(mesh, threads);
   console.log(`assembly: 1 thread ${f(one.assembleMs)} ms, ${threads} threads ${f(all.assembleMs)} ms, speed-up ${(one.assembleMs / all.assembleMs).toFixed(2)}`);
