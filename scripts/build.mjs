@@ -8,6 +8,8 @@ const entries = [
   { ...node, entryPoints: ['server/src/cli/main.ts'], outfile: 'dist/cli.js', banner: { js: '#!/usr/bin/env node' } },
   { ...node, entryPoints: ['server/src/lsp/main.ts'], outfile: 'dist/server.js' },
   { ...node, entryPoints: ['server/src/lsp/solve-worker.ts'], outfile: 'dist/solve-worker.js' },
+  // Worker threads of the fast solver (assembly and evaluation); the pool finds it beside the bundle.
+  { ...node, entryPoints: ['server/src/engine/fast/worker.ts'], outfile: 'dist/fast-worker.js' },
   { ...node, entryPoints: ['client/src/extension.ts'], outfile: 'dist/extension.js', external: ['vscode'] },
   { ...node, entryPoints: ['scripts/bench.ts'], outfile: 'dist/bench.js' },
   // Each benchmark part runs in its own process, so memory figures are its own.
