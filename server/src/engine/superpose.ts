@@ -145,12 +145,14 @@ function sliceBasis(
 ): SliceBasis | null {
   let basis = store.slices.get(key);
   if (basis && !sameCells(basis.outside, L.outside)) basis = undefined;
+  if (basis && (basis.free?.of ?? null) === level.free) return basis;
   const pts = new Float64Array(3 * L.outside.length);
   const p = [0, 0, 0];
   L.outside.forEach((idx, m) => {
     L.centre(idx, p);
     pts.set(p, 3 * m);
   });
+  // The evaluator evaluateSlices would use for this many points: the treecode (one tree, new densities per solution) or direct sums.
   const tree = L.outside.length * level.sys.n > TREECODE_ABOVE ? new FieldEvaluator(level.sys.mesh, level.unit[0] ?? new Float64Array(level.sys.n), INV_4PI, images, {}, level.sys.panels) : null;
   if (!basis) {
     const units: Float64Array[] = [];
