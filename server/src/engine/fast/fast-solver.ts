@@ -4,7 +4,7 @@
 import type { EntrySource } from './aca';
 import { buildClusterTree } from './cluster-tree';
 import { applyBlockJacobi, buildBlockJacobi, type BlockJacobi } from './block-jacobi';
-import { gmres, type GmresResult } from './gmres';
+import { gmres, type GmresResult } from '../linear/gmres';
 import { addBlock, hmatrixStorage, hmatvecTreeOrder, partitionBlocks, fillBlock, type HMatrix, type BlockTask, type DenseBlock, type LowRankBlock } from './hmatrix';
 
 export interface FastSolverOptions {
@@ -111,11 +111,18 @@ export function buildFastSolver(
         x0p = new Float64Array(n);
         for (let k = 0; k < n; k++) x0p[k] = x0[order[k]];
       }
-      const r: GmresResult | null = gmres(applyTree, bp, precondition, x0p, { tol: control.tol ?? o.tol, restart: o.restart, isCancelled: control.isCancelled });
+      const r: GmresResult | null = gmres({ n, apply: applyTree }, bp, {
+        initial: x0p ?? undefined,
+        tolerance: control.tol ?? o.tol ?? 1e-9,
+        restart: o.restart,
+        maxIterations: 1000,
+        precondition: precondition ?? undefined,
+        isCancelled: control.isCancelled,
+      });
       if (!r) return null;
       const x = new Float64Array(n);
       for (let k = 0; k < n; k++) x[order[k]] = r.x[k];
-      return { x, info: { iterations: r.iterations, relativeResidual: r.relativeResidual, converged: r.converged } };
+      return { x, info: { iterations: r.iterations, relativeResidual: r.residual, converged: r.converged } };
     },
     stats: {
       unknowns: n,
