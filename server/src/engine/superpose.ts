@@ -17,8 +17,10 @@ import { insideElectrode } from '../../../grammar/geometry';
 import type { Diagnostic, Scene3d } from '../../../grammar/scene';
 import { addFreeCharges, potentialAndField, type FieldState3d } from './bem3d/field';
 import type { FreeSolution, Level3d } from './bem3d/level';
-import { INV_4PI } from './bem3d/system';
-import type { Image } from './bem3d/images';
+import { GRID_FAR_RATIO, INV_4PI, type EvalMode } from './bem3d/system';
+import { reflect, type Image } from './bem3d/images';
+import { FAST_EVAL_MIN_PANELS } from './fast/bem3d';
+import { panelPotentialAndGradient } from './kernels/triangle';
 import { behindGround, probePoints, sliceLayout, TREECODE_ABOVE, type SliceLayout } from './evaluate';
 import { FieldEvaluator } from './fast/field-evaluator';
 import type { ProbeResult, SliceResult } from './result';
@@ -70,6 +72,93 @@ export function useSuperposition(level: Level3d, signature: string): boolean {
 
 function unitState(level: Level3d, x: Float64Array, images: Image[], charges: Scene3d['charges']): FieldState3d {
   return { sys: level.sys, x, charges, images, permittivity: 1 };
+}
+
+/**
+ * [φ, Ex, Ey, Ez] at m points (3 coordinates each) for every unit solution and the free-charge one
+ * (last, with the free charges' direct field; null when there are none), the way potentialAndField
+ * evaluates one state: below the treecode's size by direct sums, each panel's kernel computed once
+ * and weighted by every solution (bem3d/system.ts surfacePotentialAndGradient, term by term).
+ */
+function allAt(level: Level3d, images: Image[], charges: Scene3d['charges'], free: Float64Array | null, pts: Float64Array, mode: EvalMode): Float64Array[] {
+  const m = pts.length / 3;
+  const xs = free ? [...level.unit, free] : level.unit;
+  const states = xs.map((x, v) => unitState(level, x, images, free && v === xs.length - 1 ? charges : []));
+  const outs = xs.map(() => new Float64Array(4 * m));
+  const sys = level.sys;
+  if (sys.n >= FAST_EVAL_MIN_PANELS) {
+    states.forEach((st, v) => {
+      for (let i = 0; i < m; i++) outs[v].set(potentialAndField(st, pts[3 * i], pts[3 * i + 1], pts[3 * i + 2], mode), 4 * i);
+    });
+    return outs;
+  }
+  const V = xs.length;
+  const P = sys.panels;
+  const c = P.centroid;
+  const r = [0, 0, 0];
+  const g = new Float64Array(4);
+  const acc = new Float64Array(4 * V);
+  const tot = new Float64Array(4 * V);
+  const farRatioSq = GRID_FAR_RATIO * GRID_FAR_RATIO;
+  const freeBuf = new Float64Array(4);
+  for (let i = 0; i < m; i++) {
+    const x = pts[3 * i], y = pts[3 * i + 1], z = pts[3 * i + 2];
+    tot.fill(0);
+    for (const im of sys.images) {
+      reflect(im, x, y, z, r);
+      const rx = r[0], ry = r[1], rz = r[2];
+      acc.fill(0);
+      for (let j = 0; j < P.count; j++) {
+        const dx = rx - c[3 * j], dy = ry - c[3 * j + 1], dz = rz - c[3 * j + 2];
+        const d2 = dx * dx + dy * dy + dz * dz;
+        if (mode === 'grid' && d2 > farRatioSq * P.diameter[j] * P.diameter[j]) {
+          // The centroid rule, as in surfacePotentialAndGradient: q = w·area/R, ∇ = −q·d/R².
+          const inv = 1 / Math.sqrt(d2);
+          const a = P.area[j] * inv;
+          const a3 = a * inv * inv;
+          for (let v = 0; v < V; v++) {
+            const w = xs[v][j];
+            if (w === 0) continue;
+            const q = w * a;
+            const q3 = w * a3;
+            acc[4 * v] += q;
+            acc[4 * v + 1] -= q3 * dx;
+            acc[4 * v + 2] -= q3 * dy;
+            acc[4 * v + 3] -= q3 * dz;
+          }
+          continue;
+        }
+        panelPotentialAndGradient(P, j, rx, ry, rz, g);
+        for (let v = 0; v < V; v++) {
+          const w = xs[v][j];
+          if (w === 0) continue;
+          acc[4 * v] += w * g[0];
+          acc[4 * v + 1] += w * g[1];
+          acc[4 * v + 2] += w * g[2];
+          acc[4 * v + 3] += w * g[3];
+        }
+      }
+      for (let v = 0; v < V; v++) {
+        tot[4 * v] += im.sign * acc[4 * v];
+        tot[4 * v + 1] += im.sign * im.flip[0] * acc[4 * v + 1];
+        tot[4 * v + 2] += im.sign * im.flip[1] * acc[4 * v + 2];
+        tot[4 * v + 3] += im.sign * im.flip[2] * acc[4 * v + 3];
+      }
+    }
+    for (let v = 0; v < V; v++) {
+      freeBuf[0] = tot[4 * v] * INV_4PI;
+      freeBuf[1] = tot[4 * v + 1] * INV_4PI;
+      freeBuf[2] = tot[4 * v + 2] * INV_4PI;
+      freeBuf[3] = tot[4 * v + 3] * INV_4PI;
+      addFreeCharges(states[v], x, y, z, freeBuf);
+      const o = outs[v];
+      o[4 * i] = freeBuf[0];
+      o[4 * i + 1] = -freeBuf[1];
+      o[4 * i + 2] = -freeBuf[2];
+      o[4 * i + 3] = -freeBuf[3];
+    }
+  }
+  return outs;
 }
 
 /** [φ, Ex, Ey, Ez] of one state at m points, by the evaluator evaluateSlices would choose for that many points. */
@@ -154,11 +243,19 @@ function sliceBasis(
   });
   // The evaluator evaluateSlices would use for this many points: the treecode (one tree, new densities per solution) or direct sums.
   const tree = L.outside.length * level.sys.n > TREECODE_ABOVE ? new FieldEvaluator(level.sys.mesh, level.unit[0] ?? new Float64Array(level.sys.n), INV_4PI, images, {}, level.sys.panels) : null;
+  let freeValues: Float64Array | null = null;
   if (!basis) {
-    const units: Float64Array[] = [];
-    for (const u of level.unit) {
-      if (isCancelled?.()) return null;
-      units.push(valuesAt(unitState(level, u, images, []), pts, tree));
+    let units: Float64Array[] = [];
+    if (tree) {
+      for (const u of level.unit) {
+        if (isCancelled?.()) return null;
+        units.push(valuesAt(unitState(level, u, images, []), pts, tree));
+      }
+    } else {
+      // Direct sums (at most TREECODE_ABOVE point-panel pairs): every solution in one pass.
+      const all = allAt(level, images, scene.charges, level.free?.x ?? null, pts, 'grid');
+      units = all.slice(0, level.unit.length);
+      freeValues = level.free ? all[level.unit.length] : null;
     }
     basis = { outside: Int32Array.from(L.outside), units, free: null, shifted: [] };
     store.slices.set(key, basis);
@@ -172,7 +269,7 @@ function sliceBasis(
   } else if (basis.free?.of !== free) {
     if (isCancelled?.()) return null;
     const fs = unitState(level, free.x, images, scene.charges);
-    const values = valuesAt(fs, pts, tree);
+    const values = freeValues ?? valuesAt(fs, pts, tree);
     basis.free = { of: free, values };
     // A cell centre on a point or line charge: every solution's value a quarter cell off it.
     basis.shifted = [];
@@ -206,13 +303,14 @@ export function superposedProbes(scene: Scene3d, level: Level3d, images: Image[]
   const key = JSON.stringify(layout.map((p) => p.at));
   let basis = store.probes.get(key);
   if (!basis) {
-    basis = { units: level.unit.map((u) => preciseAt(unitState(level, u, images, []), layout)), free: null };
+    const all = allAt(level, images, scene.charges, level.free?.x ?? null, layoutPoints(layout), 'precise');
+    basis = { units: all.slice(0, level.unit.length), free: level.free ? { of: level.free, values: all[level.unit.length] } : null };
     store.probes.set(key, basis);
     while (store.probes.size > 8) store.probes.delete(store.probes.keys().next().value as string);
   }
   const free = level.free;
   if (!free) basis.free = null;
-  else if (basis.free?.of !== free) basis.free = { of: free, values: preciseAt(unitState(level, free.x, images, scene.charges), layout) };
+  else if (basis.free?.of !== free) basis.free = { of: free, values: allAt({ ...level, unit: [] }, images, scene.charges, free.x, layoutPoints(layout), 'precise')[0] };
   const f = [0, 0, 0, 0];
   const behind = behindGround(scene);
   const points = layout.map((p, i) => {
@@ -230,11 +328,10 @@ function probeLayout(scene: Scene3d): { probe: number; at: number[] }[] {
   return scene.probes.flatMap((p, probe) => probePoints(p).map((at) => ({ probe, at })));
 }
 
-/** [φ, Ex, Ey, Ez] at each probe point, by the precise sums (as evaluateProbes). */
-function preciseAt(state: FieldState3d, layout: { at: number[] }[]): Float64Array {
-  const out = new Float64Array(4 * layout.length);
-  layout.forEach((p, i) => out.set(potentialAndField(state, p.at[0], p.at[1], p.at[2], 'precise'), 4 * i));
-  return out;
+function layoutPoints(layout: { at: number[] }[]): Float64Array {
+  const pts = new Float64Array(3 * layout.length);
+  layout.forEach((p, i) => pts.set(p.at, 3 * i));
+  return pts;
 }
 
 /**
@@ -248,18 +345,23 @@ export function superposedSurfaceFields(scene: Scene3d, level: Level3d, images: 
   const thin: number[] = [];
   for (let j = 0; j < n; j++) if (mesh.thin[j]) thin.push(j);
   const c = mesh.centroid;
-  const normalField = (state: FieldState3d) => {
-    const out = new Float64Array(4 * thin.length);
+  const pts = new Float64Array(3 * thin.length);
+  thin.forEach((j, i) => pts.set(c.subarray(3 * j, 3 * j + 3), 3 * i));
+  // The normal field E·n (into slot 0) at the thin centroids, per solution.
+  const normalField = (values: Float64Array) => {
     thin.forEach((j, i) => {
-      const [, ex, ey, ez] = potentialAndField(state, c[3 * j], c[3 * j + 1], c[3 * j + 2]);
-      out[4 * i] = ex * mesh.normal[3 * j] + ey * mesh.normal[3 * j + 1] + ez * mesh.normal[3 * j + 2];
+      values[4 * i] = values[4 * i + 1] * mesh.normal[3 * j] + values[4 * i + 2] * mesh.normal[3 * j + 1] + values[4 * i + 3] * mesh.normal[3 * j + 2];
+      values[4 * i + 1] = values[4 * i + 2] = values[4 * i + 3] = 0;
     });
-    return out;
+    return values;
   };
-  if (!store.thin) store.thin = { units: level.unit.map((u) => normalField(unitState(level, u, images, []))), free: null };
   const free = level.free;
+  if (!store.thin) {
+    const all = allAt(level, images, scene.charges, free?.x ?? null, pts, 'precise').map(normalField);
+    store.thin = { units: all.slice(0, level.unit.length), free: free ? { of: free, values: all[level.unit.length] } : null };
+  }
   if (!free) store.thin.free = null;
-  else if (store.thin.free?.of !== free) store.thin.free = { of: free, values: normalField(unitState(level, free.x, images, scene.charges)) };
+  else if (store.thin.free?.of !== free) store.thin.free = { of: free, values: normalField(allAt({ ...level, unit: [] }, images, scene.charges, free.x, pts, 'precise')[0]) };
   const E = new Float64Array(n);
   for (let j = 0; j < n; j++) E[j] = Math.abs(x[j]);
   const f = [0, 0, 0, 0];
