@@ -17,7 +17,7 @@ import { potentialAndField, surfaceFields, type FieldState3d } from './bem3d/fie
 import { imageSet, reflect, type Image } from './bem3d/images';
 import { solveLevel, type Level3d } from './bem3d/level';
 import { surfacePotentialAndGradient } from './bem3d/system';
-import { changeBetweenLevels, NO_ESTIMATE, richardson } from './convergence';
+import { changeBetweenLevels, NO_ESTIMATE, richardson, TWO_LEVEL_SAFETY } from './convergence';
 import { applyDrives } from './drives';
 import { evaluateProbes, evaluateSlices } from './evaluate';
 import { chargePotential, chargeSamples, chargeTotal } from './kernels/free-charges';
@@ -285,10 +285,10 @@ export function solve3d(scene: Scene3d, o: Solve3dOptions): Result | null {
     let capConv: Convergence = NO_ESTIMATE;
     let fieldConv: Convergence = NO_ESTIMATE;
     if (coarse) {
-      capConv = richardson(coarse.panels, coarse.capacitance[k][k], fine.panels, fine.capacitance[k][k]);
+      capConv = richardson(coarse.panels, coarse.capacitance[k][k], fine.panels, fine.capacitance[k][k], 1, TWO_LEVEL_SAFETY);
       fieldConv = onEdge
         ? changeBetweenLevels(coarse.peak[k].value, p.value)
-        : richardson(coarse.panels, coarse.peak[k].value, fine.panels, p.value);
+        : richardson(coarse.panels, coarse.peak[k].value, fine.panels, p.value, 1, TWO_LEVEL_SAFETY);
     }
     return {
       name: e.name,
