@@ -6,6 +6,7 @@
 import type { Scene } from '../../../grammar/scene';
 import type { Result } from './result';
 import { createCache3d, solve3d, type Cache3d } from './solve';
+import { solveAdaptive, type AdaptiveOptions } from './adaptive';
 import { solveAxisymmetric } from './axisymmetric/solve';
 import { solvePlanar } from './planar/solve';
 
@@ -21,6 +22,11 @@ export interface SolveOptions {
   /** Polled during the solve; when it returns true the solve stops and returns null. */
   isCancelled?: () => boolean;
   cache?: EngineCache;
+  /**
+   * 3d only, level 'full': refine the mesh where the surface field peaks and the charge density jumps
+   * until every C_kk and peak field changes by less than `tolerance` between rounds (adaptive.ts).
+   */
+  adaptive?: AdaptiveOptions;
 }
 
 /** Caches kept between solves, one store per space (3d: meshes and solved levels). */
@@ -42,12 +48,15 @@ export function solveScene(scene: Scene, options: SolveOptions = {}): Result | n
     c3 = createCache3d();
     cache.store.set('3d', c3);
   }
-  return solve3d(scene, {
+  const o3 = {
     maxPanels: options.maxPanels ?? 20000,
     maxGridCells: options.maxGridCells ?? 250000,
     level,
     convergence: level === 'full' && (options.convergence ?? true),
     isCancelled: options.isCancelled,
     cache: c3,
-  });
+  };
+  const tol = options.adaptive?.tolerance;
+  if (level === 'full' && tol !== undefined && tol > 0 && Number.isFinite(tol)) return solveAdaptive(scene, o3, options.adaptive!);
+  return solve3d(scene, o3);
 }

@@ -125,6 +125,32 @@ export interface SolveStats {
   timings: Record<string, number>;
   /** Panels at each mesh level used for the convergence estimate, coarsest first. */
   levels: number[];
+  /** Adaptive refinement (server/src/engine/adaptive.ts), when it was asked for; absent otherwise. */
+  refinement?: RefinementStats;
+}
+
+/** What adaptive refinement did and the tolerance it reached, figure by figure. */
+export interface RefinementStats {
+  /** The tolerance asked for: largest relative change between rounds of any electrode's C_kk or peak field. */
+  tolerance: number;
+  /** Refinement rounds done (re-meshes after the first mesh). */
+  rounds: number;
+  /** Panels of each mesh solved, the first (the scene's own mesh) first. */
+  panels: number[];
+  /** Why it stopped: every figure within tolerance, the round limit, or the panel limit. */
+  stop: 'tolerance' | 'rounds' | 'panels';
+  /**
+   * Per electrode (scene order): relative change of C_kk and of the peak surface field between the
+   * last two rounds; null before a second round.
+   */
+  reached: { capacitance: (number | null)[]; maxField: (number | null)[] };
+  /**
+   * Per electrode: true when the peak field sits on a sharp edge, where it grows without bound under
+   * refinement; it is left out of the tolerance and no longer refined once C_kk has converged.
+   */
+  singularPeak: boolean[];
+  /** Per round (same order as panels), per electrode: C_kk (F) and peak surface field (V/m). */
+  history: { capacitance: number[]; maxField: number[] }[];
 }
 
 export interface Result {

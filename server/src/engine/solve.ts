@@ -15,7 +15,7 @@ import { diagnostic } from '../../../grammar/diagnostics';
 import { formatQuantity } from '../format/quantity';
 import { potentialAndField, surfaceFields, type FieldState3d } from './bem3d/field';
 import { imageSet, reflect, type Image } from './bem3d/images';
-import { solveLevel, type Level3d } from './bem3d/level';
+import { solveLevel, warmCandidate, type Level3d } from './bem3d/level';
 import { surfacePotentialAndGradient } from './bem3d/system';
 import { changeBetweenLevels, NO_ESTIMATE, richardson, TWO_LEVEL_SAFETY } from './convergence';
 import { applyDrives } from './drives';
@@ -65,6 +65,8 @@ export interface Solve3dOptions {
   isCancelled?: () => boolean;
   cache: Cache3d;
   solver?: SolverKind | 'auto';
+  /** Given meshes (coarsest first) with their cache keys, instead of the scene's levels (adaptive.ts). */
+  meshes?: { mesh: Mesh; key: string }[];
 }
 
 /**
@@ -92,7 +94,7 @@ function levelMesh(scene: Scene3d, scale: number, maxPanels: number, cache: Cach
   return entry;
 }
 
-interface LevelOutcome {
+export interface LevelOutcome {
   level: Level3d;
   panels: number;
   potentials: number[];
@@ -109,12 +111,14 @@ interface LevelOutcome {
   timings: Record<string, number>;
 }
 
-function solveAt(scene: Scene3d, mesh: Mesh, key: string, images: Image[], o: Solve3dOptions): LevelOutcome | null {
+export function solveAt(scene: Scene3d, mesh: Mesh, key: string, images: Image[], o: Solve3dOptions): LevelOutcome | null {
   const eps = EPSILON_0 * scene.medium.permittivity;
   const K = scene.electrodes.length;
   const cached = o.cache.levels.get(key) ?? null;
   const freeBefore = cached?.free ?? null;
-  const level = solveLevel(scene, mesh, images, cached, { kind: o.solver, isCancelled: o.isCancelled });
+  // A new mesh after a geometry edit: warm-start from the cached level nearest in size (bem3d/level.ts).
+  const warm = cached ? null : warmCandidate(o.cache.levels.values(), K, mesh.area.length);
+  const level = solveLevel(scene, mesh, images, cached, { kind: o.solver, isCancelled: o.isCancelled, warm });
   if (!level) return null;
   // Timings of this solve only: nothing for work reused from the cache.
   const timings: Record<string, number> = {};
@@ -254,11 +258,14 @@ export function solve3d(scene: Scene3d, o: Solve3dOptions): Result | null {
   let coarsened = false;
   let fineScale = 1;
   let t = performance.now();
-  for (const scale of scales) {
+  const levels = o.meshes ?? scales.map((scale) => {
     const m = levelMesh(scene, scale, o.maxPanels, o.cache, o.solver);
     coarsened ||= m.coarsened;
     fineScale = m.scale;
-    const out = solveAt(scene, m.mesh, `${geometry}|${m.scale}|${o.solver ?? 'auto'}`, images, o);
+    return { mesh: m.mesh, key: `${geometry}|${m.scale}|${o.solver ?? 'auto'}` };
+  });
+  for (const l of levels) {
+    const out = solveAt(scene, l.mesh, l.key, images, o);
     if (!out) return null;
     outcomes.push(out);
   }

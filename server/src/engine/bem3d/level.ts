@@ -5,6 +5,7 @@
 // Everything here is cached by a hash of the geometry (levelKey), so drive-only edits reuse it all.
 import type { Charge3d, Scene3d } from '../../../../grammar/scene';
 import { EPSILON_0 } from '../../../../grammar/scene';
+import { transferSolution } from '../fast/transfer';
 import { chargePotential } from '../kernels/free-charges';
 import { chooseSolver, createSolver, type LinearSolver, type SolverKind } from '../linear/solver';
 import type { Mesh } from '../mesh/types';
@@ -32,6 +33,8 @@ export interface Level3d {
   raw: number[][];
   free: FreeSolution | null;
   timings: Record<string, number>;
+  /** Iterations of the unit solves, per electrode (iterative solvers; empty for a direct one). */
+  iterations?: number[];
 }
 
 /** Σ of x·area over each electrode's panels. */
@@ -72,7 +75,12 @@ export function solveLevel(
   mesh: Mesh,
   images: Image[],
   cached: Level3d | null,
-  options: { kind?: SolverKind | 'auto'; isCancelled?: () => boolean },
+  options: {
+    kind?: SolverKind | 'auto';
+    isCancelled?: () => boolean;
+    /** A solved level of an earlier geometry: its unit solutions, carried over, start an iterative solve (warm start). */
+    warm?: Level3d | null;
+  },
 ): Level3d | null {
   const K = scene.electrodes.length;
   let level = cached;
@@ -92,12 +100,17 @@ export function solveLevel(
       for (let i = 0; i < sys.n; i++) if (mesh.electrode[i] === k) b[i] = 1;
       return b;
     });
-    const unit = solver.solve(rhs, { isCancelled: options.isCancelled });
+    // Warm start after a geometry edit (methods.md, fast methods): the earlier unit solutions moved onto
+    // this mesh by nearest panel (fast/transfer.ts). A direct solver has no use for them.
+    const warm = options.warm;
+    const initial = warm && warm.unit.length === K && kind !== 'dense-lu' ? warm.unit.map((u) => transferSolution(warm.mesh, u, mesh)) : undefined;
+    const unit = solver.solve(rhs, { initial, isCancelled: options.isCancelled });
     if (!unit) return null;
     timings.solve = performance.now() - t;
+    const iterations = [...solver.iterations];
     const sums = unit.map((x) => chargeSums(mesh, x, K)); // sums[k][i]
     const raw = Array.from({ length: K }, (_, i) => Array.from({ length: K }, (_, k) => sums[k][i]));
-    level = { mesh, sys, solver, kind, unit, raw, free: null, timings };
+    level = { mesh, sys, solver, kind, unit, raw, free: null, timings, iterations };
   }
   const key = freeKey(scene.charges);
   if (scene.charges.length === 0) {
@@ -112,4 +125,22 @@ export function solveLevel(
     level.timings.freeSolve = performance.now() - t;
   }
   return level;
+}
+
+/**
+ * The cached level to warm-start a new mesh from: the most recent one with the same electrodes
+ * count whose panel count is closest to n (within a factor of 2), or null.
+ */
+export function warmCandidate(levels: Iterable<Level3d>, electrodes: number, n: number): Level3d | null {
+  let best: Level3d | null = null;
+  let bestRatio = 2;
+  for (const l of levels) {
+    if (l.unit.length !== electrodes || l.mesh.area.length === 0) continue;
+    const ratio = Math.max(n, l.mesh.area.length) / Math.min(n, l.mesh.area.length);
+    if (ratio <= bestRatio) {
+      best = l;
+      bestRatio = ratio;
+    }
+  }
+  return best;
 }
