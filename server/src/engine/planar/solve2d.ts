@@ -83,6 +83,8 @@ interface Level {
   solver: string;
   /** Charge on each electrode of a density vector. */
   chargesOf(tau: Float64Array): number[];
+  /** The cached factorization this level came from (it keys the stored slice grids). */
+  factored: Factored;
 }
 
 /** An electrode's outline gets elements no larger than this fraction of its own size (half its box diagonal). */
@@ -125,6 +127,10 @@ interface Factored {
   /** Solutions (τ, then the potential at infinity when it is an unknown) for each electrode at 1 V. */
   solved: Float64Array[];
 }
+
+/** Stored slice values per factorization (superposition for drive-only edits), and the drives of its last use. */
+const stored2d = new WeakMap<Factored, Map<string, { outside: number[]; vectors: (Float64Array | null)[]; free: { key: string; values: Float64Array } | null }>>();
+const lastUse2d = new WeakMap<Factored, string>();
 
 /** Most factored levels kept in the cache (each holds an N² matrix factorization). */
 const CACHE_ENTRIES = 4;
@@ -223,7 +229,7 @@ function solveLevel(setup: Space2d, scene: Scene2d, h: number, eps: number, opti
   const columns = units.slice(0, k).map(chargeOn);
   const C = Array.from({ length: k }, (_, i) => Array.from({ length: k }, (_, j) => columns[j][i]));
   const induced = chargeOn(units[k]);
-  return { elements, units, infinity, C, induced, solver: f.solver.name, chargesOf: chargeOn };
+  return { elements, units, infinity, C, induced, solver: f.solver.name, chargesOf: chargeOn, factored: f };
 }
 
 interface Driven {
@@ -232,6 +238,8 @@ interface Driven {
   tau: Float64Array;
   infinity: number;
   singular: boolean;
+  /** Weight of the net-charge solution (planar without ground, every electrode floating or charge-driven), else 0. */
+  alpha: number;
 }
 
 /**
@@ -289,7 +297,7 @@ function drive(level: Level, drives: Drive[], infinityUnknown: boolean): Driven 
   };
   for (let e = 0; e < k; e++) add(potentials[e], e);
   add(alpha, k + 1);
-  return { potentials, charges, tau, infinity, singular };
+  return { potentials, charges, tau, infinity, singular, alpha };
 }
 
 /** Charge on each electrode of unit solution `index`. */
@@ -587,6 +595,11 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
   });
   timings.probes = performance.now() - t;
 
+  // A reused factorization with new drives or free charges: slices by superposition of stored values.
+  const freeSignature = JSON.stringify([scene.charges, scene.medium.permittivity]);
+  const used = lastUse2d.get(fine.factored);
+  const superpose = (used !== undefined && used !== JSON.stringify([drives, freeSignature])) || stored2d.has(fine.factored);
+  lastUse2d.set(fine.factored, JSON.stringify([drives, freeSignature]));
   t = performance.now();
   const slices: SliceResult[] = [];
   let tree: Tree2d | null = null;
@@ -600,7 +613,7 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
     slices.push(slice);
     if (options.isCancelled?.()) return null;
   }
-  timings.slices = performance.now() - t;
+  timings[superpose ? 'slicesSuperposed' : 'slices'] = performance.now() - t;
 
   const gaps = postSolveDiagnostics(scene, { ...setup, coarsened }, electrodes, dFine.singular, diagnostics);
   const names = scene.electrodes.map((e) => e.name);
@@ -630,6 +643,48 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
     },
   };
 
+  /**
+   * A slice's stored values per solution (superposition, as engine/superpose.ts for 3d): the grid is
+   * linear in the densities, so with G_b the values of unit solution b (electrode b at 1 V; then the
+   * raw net-charge solution) and G_free those of the free charges (their induced densities and their
+   * direct field), φ = φ_∞ + Σ_b w_b·G_b + G_free. Kept per cached factorization, slice and grid.
+   */
+  function sliceBasis2d(level: Level, tree: Tree2d, s: Scene2d['slices'][number], nu: number, nv: number, outside: number[], cellU: (i: number) => number, cellV: (i: number) => number) {
+    let bySlice = stored2d.get(level.factored);
+    if (!bySlice) stored2d.set(level.factored, (bySlice = new Map()));
+    const key = JSON.stringify([s.plane, s.at, s.from, s.to, nu, nv]);
+    let basis = bySlice.get(key);
+    if (basis && (basis.outside.length !== outside.length || basis.outside.some((c, i) => c !== outside[i]))) basis = undefined;
+    const n = level.elements.length;
+    const valuesOf = (tau: Float64Array, withFree: boolean) => {
+      const st: Space2d = { ...setup, infinityUnknown: false, free: withFree ? setup.free : [] };
+      const dd: Driven = { potentials: [], charges: [], tau, infinity: 0, singular: false, alpha: 0 };
+      setDensities(tree, tau);
+      const out = new Float64Array(3 * outside.length);
+      const acc = new Float64Array(3);
+      outside.forEach((idx, m) => {
+        evaluate(st, level.elements, tree, dd, cellU(idx), cellV(idx), acc);
+        out.set(acc, 3 * m);
+      });
+      return out;
+    };
+    if (!basis) {
+      const f = level.factored;
+      const vectors: (Float64Array | null)[] = [];
+      for (let e = 0; e < k; e++) {
+        if (options.isCancelled?.()) return null;
+        vectors.push(valuesOf(f.solved[e].subarray(0, n), false));
+      }
+      vectors.push(f.solved.length > k ? valuesOf(f.solved[k].subarray(0, n), false) : null);
+      basis = { outside: [...outside], vectors, free: null as { key: string; values: Float64Array } | null };
+      bySlice.set(key, basis);
+      while (bySlice.size > 8) bySlice.delete(bySlice.keys().next().value as string);
+    }
+    if (basis.free?.key !== freeSignature) basis.free = { key: freeSignature, values: valuesOf(level.units[k], true) };
+    setDensities(tree, dFine.tau);
+    return basis;
+  }
+
   function sliceGrid(scene: Scene2d, setup: Space2d, level: Level, tree: Tree2d, d: Driven, s: Scene2d['slices'][number]): SliceResult | null {
     const u0 = Math.min(s.from[0], s.to[0]);
     const v0 = Math.min(s.from[1], s.to[1]);
@@ -645,6 +700,7 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
     const fieldMagnitude = new Float32Array(size);
     const inside = new Int16Array(size);
     const a = new Float64Array(3);
+    const outside: number[] = [];
     for (let j = 0; j < nv; j++) {
       if ((j & 7) === 0 && options.isCancelled?.()) return null;
       for (let i = 0; i < nu; i++) {
@@ -662,11 +718,38 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
           potential[idx] = fieldU[idx] = fieldV[idx] = fieldMagnitude[idx] = 0;
           continue;
         }
-        evaluate(setup, level.elements, tree, d, u, v, a);
-        potential[idx] = a[0];
-        fieldU[idx] = a[1];
-        fieldV[idx] = a[2];
-        fieldMagnitude[idx] = Math.hypot(a[1], a[2]);
+        outside.push(idx);
+      }
+    }
+    const cellU = (idx: number) => u0 + ((idx % nu) + 0.5) * du;
+    const cellV = (idx: number) => v0 + (Math.floor(idx / nu) + 0.5) * dv;
+    const put = (idx: number, phi: number, eu: number, ev: number) => {
+      potential[idx] = phi;
+      fieldU[idx] = eu;
+      fieldV[idx] = ev;
+      fieldMagnitude[idx] = Math.hypot(eu, ev);
+    };
+    if (superpose) {
+      // Σ_e V_e·G_e + α·G_net/(ε·scale) + G_free + the potential at infinity (see sliceBasis2d).
+      const basis = sliceBasis2d(level, tree, s, nu, nv, outside, cellU, cellV);
+      if (!basis) return null;
+      const weights = [...d.potentials, d.alpha / (eps * setup.scale)];
+      for (let m = 0; m < outside.length; m++) {
+        let phi = d.infinity, eu = 0, ev = 0;
+        basis.vectors.forEach((g, b) => {
+          const w = weights[b];
+          if (!g || w === 0) return;
+          phi += w * g[3 * m];
+          eu += w * g[3 * m + 1];
+          ev += w * g[3 * m + 2];
+        });
+        const g = basis.free!.values;
+        put(outside[m], phi + g[3 * m], eu + g[3 * m + 1], ev + g[3 * m + 2]);
+      }
+    } else {
+      for (const idx of outside) {
+        evaluate(setup, level.elements, tree, d, cellU(idx), cellV(idx), a);
+        put(idx, a[0], a[1], a[2]);
       }
     }
     const outlines: Outline[] = [];
