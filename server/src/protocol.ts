@@ -89,6 +89,48 @@ export interface SolveStatusParams {
 /** Sent by the server to the client whenever the solve state of a document changes. */
 export const SolveStatusNotification = notification<SolveStatusParams>('voltscape/solveStatus');
 
+/** One electrode's figures along a sweep, one entry per swept value (SI). */
+export interface SweepSeries {
+  name: string;
+  /** Peak surface field, V/m. */
+  maxField: number[];
+  /** Self capacitance, F (F/m in `planar`). */
+  capacitance: number[];
+  /** Allowed field over the peak (a ratio); null without a limit or a medium strength. */
+  margin: (number | null)[];
+}
+
+export interface SweepResultParams {
+  uri: string;
+  /** The document version swept. */
+  version: number;
+  /**
+   * 'running': a sweep of this version has started (the last one shown is stale until it comes);
+   * 'done': values and series are filled; 'failed': message says why; 'none': this version has no sweep.
+   */
+  state: 'running' | 'done' | 'failed' | 'none';
+  /** Live sweeps are solved on the coarse mesh to stay quick; `voltscape sweep` gives the full figures. */
+  level: SolveLevel;
+  /** The swept let and the SI unit of its values ('' for a plain number). */
+  name: string;
+  unit: string;
+  space: 'planar' | 'axisymmetric' | '3d';
+  /** What the margin is measured against (e.g. 'limit', 'air strength'), or null. */
+  basis: string | null;
+  /** The let's SI values, A to B. */
+  values: number[];
+  electrodes: SweepSeries[];
+  message?: string;
+  /** Milliseconds the worker spent on the whole sweep. */
+  solveMs: number;
+}
+
+/**
+ * Sent by the server to the client for the newest version of a document with a `sweep`, after its full
+ * result: first state 'running', then 'done' (or 'failed'); 'none' once a swept document no longer has one.
+ */
+export const SweepResultNotification = notification<SweepResultParams>('voltscape/sweepResult');
+
 // ---- client → server ----
 
 export interface LatestResultParams {
@@ -136,7 +178,12 @@ export interface PreviewEmptyMessage {
   message: string;
 }
 
-export type ExtensionToPreviewMessage = PreviewShowMessage | PreviewStatusMessage | PreviewEmptyMessage;
+/** extension → webview: a sweep of the document (the same fields as SweepResultParams). */
+export interface PreviewSweepMessage extends SweepResultParams {
+  type: 'sweep';
+}
+
+export type ExtensionToPreviewMessage = PreviewShowMessage | PreviewStatusMessage | PreviewEmptyMessage | PreviewSweepMessage;
 
 /** webview → extension: the page is loaded; send the latest result. */
 export interface PreviewReadyMessage {
@@ -171,7 +218,18 @@ export interface PreviewDrawnMessage {
   stale: boolean;
 }
 
+/** webview → extension: a sweep plot was drawn (lines and points per line; used by tests). */
+export interface PreviewSweepDrawnMessage {
+  type: 'sweepDrawn';
+  version: number;
+  figure: 'maxField' | 'capacitance' | 'margin';
+  lines: number;
+  points: number[];
+  stale: boolean;
+}
+
 export type PreviewToExtensionMessage =
+  | PreviewSweepDrawnMessage
   | PreviewReadyMessage
   | PreviewSelectElectrodeMessage
   | PreviewExportMessage

@@ -10,6 +10,8 @@ import { encodeResult } from '../engine/result-json';
 import {
   ResultNotification,
   SolveStatusNotification,
+  SweepResultNotification,
+  type SweepResultParams,
   type ElectrodeLocation,
   type NotificationSpec,
   type ResultParams,
@@ -49,6 +51,8 @@ export interface DocumentState {
   solveDiagnostics: { version: number; diagnostics: Diagnostic[] } | null;
   /** The newest result, possibly of an older version. */
   solved: SolvedResult | null;
+  /** The last `voltscape/sweepResult` sent for this document, if any (optional: states built by tests lack it). */
+  sweep?: SweepResultParams | null;
 }
 
 /** A document state built from text alone, without solving: for features and their tests. */
@@ -97,6 +101,7 @@ export class ServerCore {
       analysis,
       solveDiagnostics: null,
       solved: previous?.solved ?? null,
+      sweep: previous?.sweep ?? null,
     };
     this.documents.set(uri, state);
     this.publish(state);
@@ -223,10 +228,63 @@ export class ServerCore {
               if (isCurrent) finish(current, failureDiagnostic(statements, message ?? 'unknown error'));
             }
             this.status(current, { state: outcome, ...(message ? { message } : {}) }, version);
+            if (outcome === 'done' && isCurrent) this.startSweep(current);
           },
         },
       );
     };
     this.timers.set(uri, setTimeout(start, this.settings.solveDelay));
+  }
+
+  /**
+   * After the full result of an error-free version: run the scene's (first) sweep in the worker on the
+   * coarse level, cancelled by any newer edit like a solve, stopped after maxSolveTime. Says 'none' once
+   * a document that was swept no longer has a sweep.
+   */
+  private startSweep(state: DocumentState): void {
+    const { uri } = state;
+    const version = state.document.version;
+    const spec = state.analysis.sweeps[0];
+    const base = { uri, version, level: 'coarse' as const, unit: '', space: state.analysis.scene.space, basis: null, values: [], electrodes: [], solveMs: 0 };
+    const send = (params: SweepResultParams) => {
+      state.sweep = params;
+      this.host.notify(SweepResultNotification, params);
+    };
+    if (!spec) {
+      if (state.sweep && state.sweep.state !== 'none') send({ ...base, state: 'none', name: '' });
+      return;
+    }
+    if (!this.solver.sweep) return;
+    send({ ...(state.sweep?.name === spec.name ? state.sweep : base), uri, version, state: 'running', name: spec.name });
+    const seconds = this.settings.maxSolveTime;
+    let timedOut = false;
+    const deadline = setTimeout(() => {
+      timedOut = true;
+      this.solver.cancel(uri);
+    }, seconds * 1000);
+    const current = () => {
+      const s = this.documents.get(uri);
+      return s && s.document.version === version ? s : null;
+    };
+    this.solver.sweep(
+      uri,
+      { text: state.document.getText(), name: spec.name, maxPanels: this.settings.maxPanels },
+      {
+        onSweep: (sweep, solveMs) => {
+          const s = current();
+          if (s) send({ ...base, ...sweep, state: 'done', solveMs });
+        },
+        onDone: (outcome, message) => {
+          clearTimeout(deadline);
+          const s = current();
+          if (!s) return;
+          if (outcome === 'failed') this.host.log(`sweep failed for ${uri} v${version}: ${message ?? ''}`);
+          if (outcome === 'failed' || (outcome === 'cancelled' && timedOut)) {
+            const why = outcome === 'failed' ? (message ?? 'unknown error') : `stopped after ${seconds} s (setting voltscape.maxSolveTime)`;
+            send({ ...base, state: 'failed', name: spec.name, message: `The live sweep of '${spec.name}' failed: ${why}. Run it with \`voltscape sweep FILE\`.` });
+          }
+        },
+      },
+    );
   }
 }

@@ -5,6 +5,7 @@ import { parentPort, workerData } from 'node:worker_threads';
 import { createEngineCache } from '../engine/index';
 import type { Result } from '../engine/result';
 import { runSolveJob } from './solve-runner';
+import { runSweepJob } from './sweep-runner';
 import type { FromWorker, ToWorker, WorkerInit } from './worker-messages';
 
 const port = parentPort;
@@ -15,6 +16,7 @@ if (port) {
     if (message.type === 'dispose') return port.close();
     const job = message;
     const isCancelled = () => Atomics.load(generations, job.slot) !== job.generation;
+    if (job.type === 'sweep') return runSweepJob(job, cache, isCancelled, (out: FromWorker) => port.postMessage(out));
     runSolveJob(job, cache, isCancelled, (out: FromWorker) => port.postMessage(out, out.type === 'result' ? transferables(out.result) : []));
   });
 }

@@ -8,7 +8,8 @@ import { Worker } from 'node:worker_threads';
 import type { Scene } from '../../../grammar/scene';
 import type { Result } from '../engine/result';
 import type { SolveLevel } from '../protocol';
-import type { FromWorker, SolveJob } from './worker-messages';
+import type { SweepPayload } from './sweep-runner';
+import type { FromWorker, SolveJob, SweepJob } from './worker-messages';
 
 export interface SolveRequest {
   scene: Scene;
@@ -24,9 +25,24 @@ export interface SolveCallbacks {
   onDone(state: 'done' | 'cancelled' | 'failed', message?: string): void;
 }
 
+export interface SweepRequest {
+  text: string;
+  /** The let to sweep. */
+  name: string;
+  maxPanels: number;
+}
+
+export interface SweepCallbacks {
+  /** The sweep finished for the newest job of this document. */
+  onSweep(sweep: SweepPayload, solveMs: number): void;
+  onDone(state: 'done' | 'cancelled' | 'failed', message?: string): void;
+}
+
 export interface Solver {
   /** Starts solving a document; any earlier solve of the same document is cancelled. */
   solve(uri: string, request: SolveRequest, callbacks: SolveCallbacks): void;
+  /** Starts a live sweep of a document, cancelled like a solve (by a newer solve, sweep or cancel). Optional: test solvers may lack it. */
+  sweep?(uri: string, request: SweepRequest, callbacks: SweepCallbacks): void;
   /** Cancels the document's solve, if any. */
   cancel(uri: string): void;
   dispose(): void;
@@ -66,7 +82,7 @@ class Generations {
 interface Pending {
   slot: number;
   generation: number;
-  callbacks: SolveCallbacks;
+  callbacks: Partial<SolveCallbacks & SweepCallbacks> & Pick<SolveCallbacks, 'onDone'>;
 }
 
 /** Solves in one long-lived worker thread (dist/solve-worker.js), which keeps the engine cache. */
@@ -90,6 +106,15 @@ export class WorkerSolver implements Solver {
     const worker = this.ensureWorker();
     if (!worker) return callbacks.onDone('failed', 'the solve worker stopped after repeated crashes');
     const job: SolveJob = { type: 'solve', id: this.nextId++, slot, generation, ...request };
+    this.pending.set(job.id, { slot, generation, callbacks });
+    worker.postMessage(job);
+  }
+
+  sweep(uri: string, request: SweepRequest, callbacks: SweepCallbacks): void {
+    const { slot, generation } = this.generations.advance(uri);
+    const worker = this.ensureWorker();
+    if (!worker) return callbacks.onDone('failed', 'the solve worker stopped after repeated crashes');
+    const job: SweepJob = { type: 'sweep', id: this.nextId++, slot, generation, uri, ...request };
     this.pending.set(job.id, { slot, generation, callbacks });
     worker.postMessage(job);
   }
@@ -134,7 +159,11 @@ export class WorkerSolver implements Solver {
     if (!p) return;
     const current = this.generations.isCurrent(p.slot, p.generation);
     if (message.type === 'result') {
-      if (current) p.callbacks.onResult(message.level, message.result, message.solveMs);
+      if (current) p.callbacks.onResult?.(message.level, message.result, message.solveMs);
+      return;
+    }
+    if (message.type === 'sweep') {
+      if (current) p.callbacks.onSweep?.(message.sweep, message.solveMs);
       return;
     }
     this.pending.delete(message.id);
