@@ -2,7 +2,7 @@
 import { CHECK_FORMATS, type CheckFormat } from './check-formats';
 
 export type Command =
-  | { kind: 'solve'; file: string; json: boolean; grids: boolean; svg: string | null; html: string | null }
+  | { kind: 'solve'; file: string; json: boolean; grids: boolean; svg: string | null; html: string | null; refine?: number }
   | { kind: 'check'; files: string[]; format: CheckFormat }
   | { kind: 'sweep'; file: string; csv: boolean; out: string | null; name: string | null }
   | { kind: 'lsp' }
@@ -11,8 +11,10 @@ export type Command =
   | { kind: 'usage'; message: string };
 
 export const USAGE = `Usage:
-  voltscape solve FILE [--json [--grids]] [--svg OUT] [--html OUT]
-                        solve a scene; print a report (or JSON), write pictures
+  voltscape solve FILE [--json [--grids]] [--svg OUT] [--html OUT] [--refine TOL]
+                        solve a scene; print a report (or JSON), write pictures;
+                        --refine: 3d scenes, refine the mesh until capacitances and peak
+                        fields change by less than TOL between rounds (e.g. 1e-3)
   voltscape check [--format text|json|sarif] FILE...
                         print every diagnostic as file:line:col severity code message
                         (or one JSON or SARIF 2.1.0 log); solves scenes that set a \`limit\` to test it
@@ -53,6 +55,7 @@ function parseSolve(args: readonly string[]): Command {
   let grids = false;
   let svg: string | null = null;
   let html: string | null = null;
+  let refine: number | null = null;
   let optionsDone = false;
   for (let i = 0; i < args.length; i++) {
     const a = args[i];
@@ -86,6 +89,13 @@ function parseSolve(args: readonly string[]): Command {
         else html = out;
         break;
       }
+      case '--refine': {
+        const text = value();
+        const tol = text === null ? NaN : Number(text);
+        if (text === null || text.trim() === '' || !(tol > 0 && tol < 1)) return { kind: 'usage', message: '--refine needs a tolerance between 0 and 1, e.g. 1e-3' };
+        refine = tol;
+        break;
+      }
       default:
         return { kind: 'usage', message: `unknown option ${flag} for solve` };
     }
@@ -93,7 +103,7 @@ function parseSolve(args: readonly string[]): Command {
   if (files.length === 0) return { kind: 'usage', message: 'solve needs a scene file' };
   if (files.length > 1) return { kind: 'usage', message: `solve takes one scene file, got ${files.length}` };
   if (grids && !json) return { kind: 'usage', message: '--grids only goes with --json' };
-  return { kind: 'solve', file: files[0], json, grids, svg, html };
+  return { kind: 'solve', file: files[0], json, grids, svg, html, ...(refine !== null ? { refine } : {}) };
 }
 
 function parseCheck(args: readonly string[]): Command {

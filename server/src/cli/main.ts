@@ -26,7 +26,7 @@ const io: Io = {
 const stages: Stages = {
   version: pkg.version,
   analyzeText,
-  solveScene: (scene) => solveScene(scene),
+  solveScene: (scene, options) => solveScene(scene, options?.refine !== undefined ? { adaptive: { tolerance: options.refine } } : {}),
   renderPreviewHtml: ({ file, scene, result }) => renderPreviewHtml(result, scene.title ?? file),
   // One engine cache for all the steps of a sweep, so that sweeping a drive reuses the factorization.
   sweep: (command, io) =>

@@ -299,11 +299,24 @@ function stats(result: Result): string {
   const lines = ['Solve'];
   lines.push(`  panels ${s.panels}, unknowns ${s.unknowns}, solver ${s.solver}`);
   if (s.levels && s.levels.length > 0) lines.push(`  mesh levels (panels, coarsest first) ${s.levels.join(', ')}`);
+  if (s.refinement) lines.push('  ' + refinementLine(result));
   const timings = Object.entries(s.timings ?? {});
   if (timings.length > 0) {
     lines.push('  timings ' + timings.map(([k, ms]) => `${k} ${formatQuantity(ms / 1000, 'time', { digits: 3 })}`).join(', '));
   }
   return lines.join('\n');
+}
+
+/** One line: rounds, panels, why it stopped, and each electrode's change in the last round (adaptive.ts). */
+function refinementLine(result: Result): string {
+  const r = result.stats.refinement!;
+  const stop = { tolerance: 'within the tolerance', rounds: 'at the round limit, NOT within the tolerance', panels: 'at the panel limit, NOT within the tolerance' }[r.stop];
+  const change = (x: number | null) => (x === null ? 'n/a' : x.toExponential(1));
+  const figures = result.electrodes.map((e, k) => {
+    const peak = r.singularPeak[k] ? `peak ${change(r.reached.maxField[k])} (on an edge: singular, does not converge; left out)` : `peak ${change(r.reached.maxField[k])}`;
+    return `${e.name} C ${change(r.reached.capacitance[k])}, ${peak}`;
+  });
+  return `adaptive refinement to ${r.tolerance.toExponential(1)}: ${r.rounds} round${r.rounds === 1 ? '' : 's'} (panels ${r.panels.join(', ')}), stopped ${stop}; change in the last round: ${figures.join('; ')}`;
 }
 
 function diagnostics({ file, diagnostics, result }: ReportInput): string {

@@ -43,7 +43,8 @@ export interface PreviewInput {
 export interface Stages {
   version: string;
   analyzeText(text: string): AnalysisLike;
-  solveScene(scene: Scene): Result | null;
+  /** `refine`: adaptive refinement to this tolerance (3d; `--refine`). */
+  solveScene(scene: Scene, options?: { refine?: number }): Result | null;
   /** The `--html` export; absent until the preview page exists. */
   renderPreviewHtml?: (input: PreviewInput) => string;
   /** `voltscape lsp --stdio`: starts the server, which then keeps the process alive. */
@@ -234,6 +235,8 @@ interface SolveCommand {
   grids: boolean;
   svg: string | null;
   html: string | null;
+  /** Adaptive refinement tolerance (`--refine`). */
+  refine?: number;
 }
 
 async function solve(cmd: SolveCommand, io: Io, stages: Stages): Promise<number> {
@@ -251,7 +254,7 @@ async function solve(cmd: SolveCommand, io: Io, stages: Stages): Promise<number>
   const { scene, diagnostics } = analysed.value;
   const errors = countErrors(diagnostics);
   if (errors > 0 || !scene) return fail(`${cmd.file} has ${plural(errors, 'error')}: not solved`, diagnostics);
-  const solved = guarded(`solving ${cmd.file}`, () => stages.solveScene(scene));
+  const solved = guarded(`solving ${cmd.file}`, () => stages.solveScene(scene, cmd.refine !== undefined ? { refine: cmd.refine } : undefined));
   if (!solved.ok) return fail(solved.message, diagnostics);
   if (solved.value === null) return fail(`could not solve ${cmd.file} (the solver gave no result for this scene)`, diagnostics);
   const result: Result = { ...solved.value, diagnostics: solveDiagnostics(scene, solved.value) };
