@@ -9,6 +9,8 @@ import {
   ResultParams,
   SolveStatusNotification,
   SolveStatusParams,
+  SweepResultNotification,
+  SweepResultParams,
 } from '../../server/src/protocol';
 import { PREVIEW_VIEW_TYPE, PreviewPanel, ResultSource } from './preview-panel';
 import { SolveStatusItem } from './status-item';
@@ -61,6 +63,7 @@ export async function activate(context: vscode.ExtensionContext): Promise<Voltsc
     status.onStatus(p);
     PreviewPanel.current?.onStatus(p);
   });
+  client.onNotification(SweepResultNotification.method, (p: SweepResultParams) => PreviewPanel.onSweep(p));
 
   const openPreview = (uri?: vscode.Uri): void => {
     const target = uri?.toString() ?? vscode.window.activeTextEditor?.document.uri.toString();

@@ -6,8 +6,10 @@ import type {
   ExtensionToPreviewMessage,
   PreviewDrawnMessage,
   PreviewToExtensionMessage,
+  PreviewSweepDrawnMessage,
   ResultParams,
   SolveStatusParams,
+  SweepResultParams,
 } from '../../server/src/protocol';
 import { makeNonce, previewHtml } from './preview-html';
 
@@ -27,6 +29,10 @@ export class PreviewPanel {
   static current: PreviewPanel | undefined;
   /** What the page last reported drawing (for tests and diagnostics of the preview itself). */
   lastDrawn: PreviewDrawnMessage | undefined;
+  /** What the page last reported drawing in its sweep plot. */
+  lastSweepDrawn: PreviewSweepDrawnMessage | undefined;
+  /** The newest `voltscape/sweepResult` of each document, resent when the page is rebuilt. */
+  private static readonly sweeps = new Map<string, SweepResultParams>();
   private uri: string;
   private readonly disposables: vscode.Disposable[] = [];
 
@@ -105,6 +111,12 @@ export class PreviewPanel {
     if (p.uri === this.uri) this.post(this.showMessage(p));
   }
 
+  /** Keeps the newest sweep of every document (also while no panel is open) and forwards it to the page. */
+  static onSweep(p: SweepResultParams): void {
+    PreviewPanel.sweeps.set(p.uri, p);
+    if (PreviewPanel.current?.uri === p.uri) PreviewPanel.current.post({ type: 'sweep', ...p });
+  }
+
   onStatus(p: SolveStatusParams): void {
     if (p.uri === this.uri) this.post({ type: 'status', state: p.state, version: p.version, message: p.message });
   }
@@ -121,8 +133,11 @@ export class PreviewPanel {
     const uri = this.uri;
     const latest = await this.source.latest(uri);
     if (uri !== this.uri) return;
-    if (latest) this.post(this.showMessage(latest));
-    else this.post({ type: 'empty', title: titleOf(uri), message: 'Not solved yet: the picture appears once the scene has been solved.' });
+    const sweep = PreviewPanel.sweeps.get(uri);
+    if (latest) {
+      this.post(this.showMessage(latest));
+      if (sweep) this.post({ type: 'sweep', ...sweep });
+    } else this.post({ type: 'empty', title: titleOf(uri), message: 'Not solved yet: the picture appears once the scene has been solved.' });
   }
 
   private onMessage(m: PreviewToExtensionMessage): void {
@@ -131,6 +146,7 @@ export class PreviewPanel {
     else if (m.type === 'selectElectrode') void this.selectElectrode(m.index, m.name, m.range);
     else if (m.type === 'export') void this.save(m.format, m.data, m.suggestedName);
     else if (m.type === 'drawn') this.lastDrawn = m;
+    else if (m.type === 'sweepDrawn') this.lastSweepDrawn = m;
   }
 
   /** Selects the electrode's statement in the scene's editor (opening it beside if needed). */

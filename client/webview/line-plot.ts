@@ -10,11 +10,11 @@ import { px, svgEl } from './svg';
 function potentialUnit(max: number): [number, string] {
   return max >= 1e6 ? [1e6, 'MV'] : max >= 1e3 ? [1e3, 'kV'] : [1, 'V'];
 }
-function fieldUnit(max: number): [number, string] {
+export function fieldUnit(max: number): [number, string] {
   return max >= 1e5 ? [1e6, 'kV/mm'] : max >= 1e2 ? [1e3, 'V/mm'] : [1, 'V/m'];
 }
 
-function niceTicks(lo: number, hi: number, count = 5): number[] {
+export function niceTicks(lo: number, hi: number, count = 5): number[] {
   if (!(hi > lo)) return [lo];
   const raw = (hi - lo) / count;
   const mag = 10 ** Math.floor(Math.log10(raw));

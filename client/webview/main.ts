@@ -3,7 +3,7 @@
 // the chosen slice, and reports clicks and saves back to its host. Scene text is set with textContent only.
 import type { Result } from '../../server/src/engine/result';
 import { decodeResult } from '../../server/src/engine/result-json';
-import type { ExtensionToPreviewMessage, PreviewShowMessage, SolveState } from '../../server/src/protocol';
+import type { ExtensionToPreviewMessage, PreviewShowMessage, SolveState, SweepResultParams } from '../../server/src/protocol';
 import { readPalette } from './colours';
 import { pngDataUrl, svgText } from './export';
 import { formatField, formatLength, formatPotential, engineering } from './format';
@@ -11,6 +11,7 @@ import { describeSlice, fromPx, insideFrame, sampleBilinear, cellAt } from './ge
 import { getHost, ViewState } from './host';
 import { drawLinePlot } from './line-plot';
 import { drawPicture, Picture } from './picture';
+import { drawSweepPlot, SWEEP_FIGURES, type SweepFigure } from './sweep-plot';
 import { htmlEl } from './svg';
 
 const host = getHost();
@@ -50,6 +51,15 @@ const pngButton = htmlEl('button', { id: 'save-png', type: 'button', class: 'too
 const figure = htmlEl('div', { id: 'figure', class: 'figure' }, root);
 const readout = htmlEl('p', { id: 'readout', class: 'readout' }, root, 'Point at the picture to read the potential and field.');
 const notesEl = htmlEl('ul', { id: 'notes', class: 'notes' }, root);
+// The sweep: shown only while the scene has one (the server sends it after the full result).
+const sweepEl = htmlEl('section', { id: 'sweep', class: 'sweep plots', hidden: '' }, root);
+const sweepHead = htmlEl('div', { class: 'tools' }, sweepEl);
+htmlEl('h2', { class: 'sweep-title' }, sweepHead, 'Sweep');
+const sweepLabel = htmlEl('label', { class: 'tool' }, sweepHead, 'Plot ');
+const sweepSelect = htmlEl('select', { id: 'sweep-figure' }, sweepLabel);
+for (const f of SWEEP_FIGURES) htmlEl('option', { value: f.key }, sweepSelect, f.label);
+const sweepStatus = htmlEl('span', { class: 'status', id: 'sweep-status', role: 'status' }, sweepHead);
+const sweepPlot = htmlEl('figure', { id: 'sweep-plot', class: 'plot' }, sweepEl);
 const plotsEl = htmlEl('section', { id: 'probe-plots', class: 'plots' }, root);
 const tableEl = htmlEl('section', { id: 'electrodes', class: 'electrodes' }, root);
 htmlEl(
@@ -242,6 +252,61 @@ pngButton.addEventListener('click', () => {
     });
 });
 
+// ---- the sweep ----
+let sweep: SweepResultParams | null = null;
+let sweepFigure: SweepFigure = 'maxField';
+/** The newest document version the page has heard of (a newer one makes the sweep shown stale). */
+let newestVersion = 0;
+
+function renderSweep(): void {
+  sweepEl.hidden = !sweep || sweep.state === 'none';
+  if (!sweep || sweep.state === 'none') return;
+  const stale = sweep.state === 'running' || newestVersion > sweep.version;
+  sweepEl.dataset.stale = stale ? 'true' : 'false';
+  sweepPlot.classList.toggle('stale', stale);
+  const marginOption = sweepSelect.querySelector('option[value="margin"]') as HTMLOptionElement | null;
+  const hasMargin = sweep.basis !== null;
+  if (marginOption) marginOption.disabled = !hasMargin;
+  if (sweepFigure === 'margin' && !hasMargin) sweepFigure = 'maxField';
+  sweepSelect.value = sweepFigure;
+  const steps = `${sweep.values.length} step${sweep.values.length === 1 ? '' : 's'}`;
+  sweepStatus.classList.toggle('status-problem', sweep.state === 'failed');
+  sweepStatus.textContent =
+    sweep.state === 'failed'
+      ? (sweep.message ?? 'The live sweep failed.')
+      : sweep.state === 'running'
+        ? `Sweeping ${sweep.name}…${sweep.values.length ? ' (showing the previous sweep)' : ''}`
+        : stale
+          ? 'Out of date: a newer version of the scene is being solved'
+          : `${sweep.name}: ${steps}, coarse mesh (run \`voltscape sweep\` for the full figures)${hasMargin ? '' : '; no margin without a limit or a medium strength'}`;
+  sweepPlot.replaceChildren();
+  if (sweep.values.length === 0) return;
+  const svg = drawSweepPlot(sweep, sweepFigure, readPalette());
+  svg.style.maxWidth = `${svg.getAttribute('width')}px`;
+  sweepPlot.appendChild(svg);
+  host.post({
+    type: 'sweepDrawn',
+    version: sweep.version,
+    figure: sweepFigure,
+    lines: svg.querySelectorAll('path.sweep-line').length,
+    points: [...svg.querySelectorAll('g.sweep-series')].map((g) => g.querySelectorAll('circle.sweep-point').length),
+    stale,
+  });
+}
+
+sweepSelect.addEventListener('change', () => {
+  sweepFigure = sweepSelect.value as SweepFigure;
+  renderSweep();
+});
+
+function onSweep(m: SweepResultParams): void {
+  // Only the newest: an older version's sweep never replaces a newer one.
+  if (sweep && m.version < sweep.version) return;
+  sweep = m;
+  newestVersion = Math.max(newestVersion, m.version);
+  renderSweep();
+}
+
 // ---- messages ----
 function show(m: Pick<PreviewShowMessage, 'title' | 'stale' | 'level' | 'result' | 'version'>): void {
   let result: Result;
@@ -270,7 +335,12 @@ const waitingStates: SolveState[] = ['queued', 'solving'];
 function handle(message: ExtensionToPreviewMessage): void {
   if (!message || typeof message !== 'object') return;
   if (message.type === 'show') show(message);
+  else if (message.type === 'sweep') onSweep(message);
   else if (message.type === 'status') {
+    if (typeof message.version === 'number' && message.version > newestVersion) {
+      newestVersion = message.version;
+      if (sweep) renderSweep();
+    }
     // Solving the version already shown (the full level after a coarse one) only refines the picture.
     const refining = waitingStates.includes(message.state) && !!shown && message.version === shown.version;
     solving = waitingStates.includes(message.state) && !refining;
