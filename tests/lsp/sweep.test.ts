@@ -45,11 +45,12 @@ describe('live sweeps', () => {
     expect(p.values).toEqual([0.01, 0.02, 0.03, 0.04]);
     expect(p.electrodes.map((e) => e.name)).toEqual(['dome']);
     // Isolated sphere of radius a (textbook electrostatics, references.md "Closed forms"): C = 4πε0·a.
-    // Tolerance: the flat-panel capacitance error is about 4/N (docs/geometry.md); the coarse preset
-    // meshes this sphere with N = 720 panels, so 4/N = 0.56% (the CLI sweep test measures +0.074%).
+    // Tolerance: the flat-panel capacitance error is about 4/N (docs/geometry.md); live sweeps use the
+    // coarse level, which meshes this sphere (`mesh coarse`) with N = 180 panels, so 4/N = 2.2%;
+    // measured +0.26% at every step (the mesh scales with the radius).
     p.values.forEach((a, k) => {
       const c = p.electrodes[0].capacitance[k];
-      expect(Math.abs(c - 4 * Math.PI * EPSILON_0 * a) / (4 * Math.PI * EPSILON_0 * a)).toBeLessThan(4 / 720);
+      expect(Math.abs(c - 4 * Math.PI * EPSILON_0 * a) / (4 * Math.PI * EPSILON_0 * a)).toBeLessThan(4 / 180);
     });
     // Vacuum has no strength and there is no limit: no margin.
     expect(p.basis).toBeNull();
