@@ -77,5 +77,8 @@ describe('superposition of stored unit grids in 2d', () => {
       expectSameSlices(solveScene(scene(text(...drive)), options)!, solveScene(scene(text(...drive)), { level: 'coarse' })!);
       expectSameSlices(solveScene(scene(text(...free)), options)!, solveScene(scene(text(...free)), { level: 'coarse' })!);
     });
+    it(`${name}: superpose: true on a first solve gives the same grid`, () => {
+      expectSameSlices(solveScene(scene(text(...first)), { level: 'coarse', superpose: true })!, solveScene(scene(text(...first)), { level: 'coarse' })!);
+    });
   }
 });

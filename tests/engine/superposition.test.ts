@@ -89,6 +89,12 @@ describe('superposition of stored unit grids', () => {
     expectSame(edited, run('12 kV', '-5 nC'));
   });
 
+  it('superpose: true builds and uses the stored grids at once (for an idle worker), with the same values', () => {
+    const warmed = solveScene(scene('10 kV', '2 nC'), { ...options, superpose: true })!;
+    expect(warmed.stats.timings.slicesSuperposed).toBeDefined();
+    expectSame(warmed, solveScene(scene('10 kV', '2 nC'), options)!);
+  });
+
   it('a grid large enough for the treecode matches too', () => {
     const cache = createEngineCache();
     solveScene(scene('10 kV', '2 nC', 150), { ...options, cache });

@@ -27,6 +27,12 @@ export interface SolveOptions {
    * until every C_kk and peak field changes by less than `tolerance` between rounds (adaptive.ts).
    */
   adaptive?: AdaptiveOptions;
+  /**
+   * Build (if missing) and use the stored per-electrode grids of drive-only edits now (superpose.ts;
+   * the results are the same). Default: only when a cached level is reused with new drives. A worker
+   * can run a full solve with this set while idle, so that the first drive edit is fast too.
+   */
+  superpose?: boolean;
 }
 
 /** Caches kept between solves, one store per space (3d: meshes and solved levels). */
@@ -55,6 +61,7 @@ export function solveScene(scene: Scene, options: SolveOptions = {}): Result | n
     convergence: level === 'full' && (options.convergence ?? true),
     isCancelled: options.isCancelled,
     cache: c3,
+    superpose: options.superpose,
   };
   const tol = options.adaptive?.tolerance;
   if (level === 'full' && tol !== undefined && tol > 0 && Number.isFinite(tol)) return solveAdaptive(scene, o3, options.adaptive!);

@@ -65,6 +65,8 @@ export interface Solve3dOptions {
   isCancelled?: () => boolean;
   cache: Cache3d;
   solver?: SolverKind | 'auto';
+  /** Use stored per-electrode grids now (see SolveOptions.superpose). */
+  superpose?: boolean;
   /** Given meshes (coarsest first) with their cache keys, instead of the scene's levels (adaptive.ts). */
   meshes?: { mesh: Mesh; key: string }[];
 }
@@ -149,7 +151,7 @@ export function solveAt(scene: Scene3d, mesh: Mesh, key: string, images: Image[]
   const state: FieldState3d = { sys: level.sys, x, charges: scene.charges, images, permittivity: scene.medium.permittivity };
   // A reused level with new drives or free charges: fields by superposition of stored values.
   const signature = JSON.stringify([drives.potentials, level.free?.key ?? null, scene.medium.permittivity]);
-  const superposed = useSuperposition(level, signature);
+  const superposed = useSuperposition(level, signature) || o.superpose === true;
   const field = superposed ? superposedSurfaceFields(scene, level, images, x, drives.potentials) : surfaceFields(state);
   const peak = Array.from({ length: K }, () => ({ value: 0, panel: -1 }));
   for (let j = 0; j < field.length; j++) {

@@ -29,7 +29,7 @@ import { buildTree, setDensities, treeEvaluate, type Tree2d } from './treecode2d
 type Scene2d = SceneAxisymmetric | ScenePlanar;
 
 /** The engine's SolveOptions (server/src/engine/index.ts), plus a mesh scale for tests. */
-export interface Solve2dOptions extends Pick<SolveOptions, 'maxPanels' | 'maxGridCells' | 'level' | 'convergence' | 'isCancelled' | 'cache'> {
+export interface Solve2dOptions extends Pick<SolveOptions, 'maxPanels' | 'maxGridCells' | 'level' | 'convergence' | 'isCancelled' | 'cache' | 'superpose'> {
   /** Multiplies the element size (tests and coarse previews). */
   meshScale?: number;
 }
@@ -598,7 +598,7 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
   // A reused factorization with new drives or free charges: slices by superposition of stored values.
   const freeSignature = JSON.stringify([scene.charges, scene.medium.permittivity]);
   const used = lastUse2d.get(fine.factored);
-  const superpose = (used !== undefined && used !== JSON.stringify([drives, freeSignature])) || stored2d.has(fine.factored);
+  const superpose = (used !== undefined && used !== JSON.stringify([drives, freeSignature])) || stored2d.has(fine.factored) || options.superpose === true;
   lastUse2d.set(fine.factored, JSON.stringify([drives, freeSignature]));
   t = performance.now();
   const slices: SliceResult[] = [];
