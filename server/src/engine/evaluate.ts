@@ -147,7 +147,15 @@ export interface SliceLayout {
   result: SliceResult;
 }
 
-export function sliceLayout(scene: Scene3d, slice: Slice, maxGridCells: number, potentials: readonly number[], diagnostics: Diagnostic[]): SliceLayout {
+/** `lines`: the slice's outlines and ground lines when already known (they depend on the geometry and the slice alone). */
+export function sliceLayout(
+  scene: Scene3d,
+  slice: Slice,
+  maxGridCells: number,
+  potentials: readonly number[],
+  diagnostics: Diagnostic[],
+  lines?: Pick<SliceResult, 'outlines' | 'groundLines'>,
+): SliceLayout {
   const { nu, nv, du, dv, reduced } = sliceGrid(slice, maxGridCells);
   if (reduced) {
     diagnostics.push(
@@ -212,8 +220,8 @@ export function sliceLayout(scene: Scene3d, slice: Slice, maxGridCells: number, 
     fieldV,
     fieldMagnitude,
     inside,
-    outlines: sliceOutlines(scene, slice),
-    groundLines: groundLines(scene, slice),
+    outlines: lines?.outlines ?? sliceOutlines(scene, slice),
+    groundLines: lines?.groundLines ?? groundLines(scene, slice),
   };
   return { nu, nv, outside, centre, shift, store, potential, fieldMagnitude, result };
 }

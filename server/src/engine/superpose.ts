@@ -44,6 +44,8 @@ interface LevelStore {
   slices: Map<string, SliceBasis>;
   probes: Map<string, Basis>;
   thin: Basis | null;
+  /** Each slice's outlines and ground lines (the level's geometry and the slice decide them). */
+  lines: Map<string, Pick<SliceResult, 'outlines' | 'groundLines'>>;
 }
 
 const stores = new WeakMap<Level3d, LevelStore>();
@@ -51,7 +53,7 @@ const stores = new WeakMap<Level3d, LevelStore>();
 function storeOf(level: Level3d): LevelStore {
   let s = stores.get(level);
   if (!s) {
-    s = { signature: null, slices: new Map(), probes: new Map(), thin: null };
+    s = { signature: null, slices: new Map(), probes: new Map(), thin: null, lines: new Map() };
     stores.set(level, s);
   }
   return s;
@@ -206,7 +208,10 @@ export function superposedSlices(
   const out: SliceResult[] = [];
   const eps = scene.medium.permittivity;
   for (const slice of scene.slices) {
-    const L = sliceLayout(scene, slice, maxGridCells, potentials, diagnostics);
+    const where = JSON.stringify([slice.plane, slice.at, slice.from, slice.to]);
+    const L = sliceLayout(scene, slice, maxGridCells, potentials, diagnostics, store.lines.get(where));
+    store.lines.set(where, { outlines: L.result.outlines, groundLines: L.result.groundLines });
+    while (store.lines.size > 16) store.lines.delete(store.lines.keys().next().value as string);
     const key = JSON.stringify([slice.plane, slice.at, slice.from, slice.to, L.nu, L.nv]);
     const basis = sliceBasis(scene, level, images, L, key, store, isCancelled);
     if (!basis) return null;
