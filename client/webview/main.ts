@@ -300,8 +300,9 @@ sweepSelect.addEventListener('change', () => {
 });
 
 function onSweep(m: SweepResultParams): void {
-  // Only the newest: an older version's sweep never replaces a newer one.
-  if (sweep && m.version < sweep.version) return;
+  // Only the newest: an older version's sweep of the same document never replaces a newer one.
+  if (sweep && sweep.uri === m.uri && m.version < sweep.version) return;
+  if (sweep && sweep.uri !== m.uri) newestVersion = 0;
   sweep = m;
   newestVersion = Math.max(newestVersion, m.version);
   renderSweep();
@@ -334,6 +335,14 @@ const waitingStates: SolveState[] = ['queued', 'solving'];
 
 function handle(message: ExtensionToPreviewMessage): void {
   if (!message || typeof message !== 'object') return;
+  if (message.type === 'show' || message.type === 'empty') {
+    // Another document (the preview follows the active editor): its sweep, if any, comes on its own.
+    if (sweep && (message.type === 'empty' || sweep.uri !== message.uri)) {
+      sweep = null;
+      newestVersion = 0;
+      renderSweep();
+    }
+  }
   if (message.type === 'show') show(message);
   else if (message.type === 'sweep') onSweep(message);
   else if (message.type === 'status') {

@@ -92,4 +92,15 @@ describe('preview sweep plot', () => {
     await page.waitForSelector('#sweep', { state: 'hidden' });
     expect(await page.evaluate(() => (window as unknown as { __cspViolations: string[] }).__cspViolations)).toEqual([]);
   });
+
+  it("drops one document's sweep when the preview follows another", async () => {
+    await sendToPage(page, { ...sweep, type: 'sweep', version: 4, state: 'done' });
+    await page.waitForSelector('#sweep', { state: 'visible' });
+    const sphere = solveText(SPHERE_SCENE);
+    await sendToPage(page, { type: 'show', title: sphere.title, uri: 'file:///other.vscape', version: 1, level: 'full', stale: false, result: sphere.encoded });
+    await page.waitForSelector('#sweep', { state: 'hidden' });
+    // The other document's own sweep, at a lower version, is still shown.
+    await sendToPage(page, { ...sweep, type: 'sweep', uri: 'file:///other.vscape', version: 1, state: 'done' });
+    await page.waitForSelector('#sweep', { state: 'visible' });
+  });
 });

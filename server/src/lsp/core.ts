@@ -246,8 +246,8 @@ export class ServerCore {
     const version = state.document.version;
     const spec = state.analysis.sweeps[0];
     const base = { uri, version, level: 'coarse' as const, unit: '', space: state.analysis.scene.space, basis: null, values: [], electrodes: [], solveMs: 0 };
-    const send = (params: SweepResultParams) => {
-      state.sweep = params;
+    const send = (params: SweepResultParams, target: DocumentState = state) => {
+      target.sweep = params;
       this.host.notify(SweepResultNotification, params);
     };
     if (!spec) {
@@ -272,7 +272,7 @@ export class ServerCore {
       {
         onSweep: (sweep, solveMs) => {
           const s = current();
-          if (s) send({ ...base, ...sweep, state: 'done', solveMs });
+          if (s) send({ ...base, ...sweep, state: 'done', solveMs }, s);
         },
         onDone: (outcome, message) => {
           clearTimeout(deadline);
@@ -281,7 +281,7 @@ export class ServerCore {
           if (outcome === 'failed') this.host.log(`sweep failed for ${uri} v${version}: ${message ?? ''}`);
           if (outcome === 'failed' || (outcome === 'cancelled' && timedOut)) {
             const why = outcome === 'failed' ? (message ?? 'unknown error') : `stopped after ${seconds} s (setting voltscape.maxSolveTime)`;
-            send({ ...base, state: 'failed', name: spec.name, message: `The live sweep of '${spec.name}' failed: ${why}. Run it with \`voltscape sweep FILE\`.` });
+            send({ ...base, state: 'failed', name: spec.name, message: `The live sweep of '${spec.name}' failed: ${why}. Run it with \`voltscape sweep FILE\`.` }, s);
           }
         },
       },
