@@ -12,11 +12,13 @@ const port = parentPort;
 if (port) {
   const generations = new Int32Array((workerData as WorkerInit).generations);
   const cache = createEngineCache();
+  // Live sweeps keep their own cache: a geometry sweep must not push the live scene's factorization out.
+  const sweepCache = createEngineCache();
   port.on('message', (message: ToWorker) => {
     if (message.type === 'dispose') return port.close();
     const job = message;
     const isCancelled = () => Atomics.load(generations, job.slot) !== job.generation;
-    if (job.type === 'sweep') return runSweepJob(job, cache, isCancelled, (out: FromWorker) => port.postMessage(out));
+    if (job.type === 'sweep') return runSweepJob(job, sweepCache, isCancelled, (out: FromWorker) => port.postMessage(out));
     runSolveJob(job, cache, isCancelled, (out: FromWorker) => port.postMessage(out, out.type === 'result' ? transferables(out.result) : []));
   });
 }
