@@ -53,6 +53,8 @@ function relDiff(a: ArrayLike<number>, b: ArrayLike<number>): number {
 
 function expectSameSlices(edited: Result, fresh: Result): void {
   expect(edited.stats.timings.slicesSuperposed).toBeDefined();
+  // Peak surface fields (thin elements by their stored principal-value fields).
+  expect(relDiff(edited.electrodes.map((e) => e.maxField), fresh.electrodes.map((e) => e.maxField))).toBeLessThan(1e-9);
   expect(edited.slices.length).toBe(fresh.slices.length);
   edited.slices.forEach((s, i) => {
     const f = fresh.slices[i];

@@ -342,12 +342,56 @@ interface SurfacePeak {
  * inside is zero); on a thin sheet or hollow shell the mean of the two faces' fields ± τ/2·n, the
  * larger face reported. Returns the peak per electrode.
  */
-function surfacePeaks(setup: Space2d, level: Level, d: Driven, k: number): SurfacePeak[] {
+/**
+ * Stored principal-value fields at thin elements per solution (superposition for drive-only edits,
+ * as the slices): per electrode at 1 V, the raw net-charge solution, and the free charges.
+ */
+const thinStored = new WeakMap<Factored, { vectors: (Float64Array | null)[]; free: { key: string; values: Float64Array } | null }>();
+
+/** [Ex, Ey] of the principal-value field at every element (0 at closed ones) for densities tau. */
+function thinFields(setup: Space2d, elements: Element2d[], far: Float64Array, tau: Float64Array, withFree: boolean): Float64Array {
+  const st: Space2d = { ...setup, infinityUnknown: false, free: withFree ? setup.free : [] };
+  const d: Driven = { potentials: [], charges: [], tau, infinity: 0, singular: false, alpha: 0 };
+  const out = new Float64Array(2 * elements.length);
+  const plus = new Float64Array(3);
+  const minus = new Float64Array(3);
+  elements.forEach((el, i) => {
+    if (!el.thin) return;
+    const delta = 1e-3 * el.length;
+    fieldAt(st, elements, far, d, el.mx + delta * el.nx, el.my + delta * el.ny, plus);
+    fieldAt(st, elements, far, d, el.mx - delta * el.nx, el.my - delta * el.ny, minus);
+    out[2 * i] = 0.5 * (plus[1] + minus[1]);
+    out[2 * i + 1] = 0.5 * (plus[2] + minus[2]);
+  });
+  return out;
+}
+
+function surfacePeaks(setup: Space2d, level: Level, d: Driven, k: number, superpose: { freeSignature: string; eps: number } | null = null): SurfacePeak[] {
   const peaks: SurfacePeak[] = Array.from({ length: k }, () => ({ value: 0, at: [NaN, NaN] as Vec2, edge: false }));
   const { elements } = level;
   const far = farNodes(elements);
   const plus = new Float64Array(3);
   const minus = new Float64Array(3);
+  let summed: Float64Array | null = null;
+  if (superpose && elements.some((el) => el.thin)) {
+    const f = level.factored;
+    const n = elements.length;
+    let s = thinStored.get(f);
+    if (!s) {
+      const vectors: (Float64Array | null)[] = f.solved.slice(0, k).map((x) => thinFields(setup, elements, far, x.subarray(0, n), false));
+      vectors.push(f.solved.length > k ? thinFields(setup, elements, far, f.solved[k].subarray(0, n), false) : null);
+      thinStored.set(f, (s = { vectors, free: null }));
+    }
+    if (s.free?.key !== superpose.freeSignature) s.free = { key: superpose.freeSignature, values: thinFields(setup, elements, far, level.units[k], true) };
+    // Σ_e V_e·E_e + α·E_net/(ε·scale) + E_free.
+    const weights = [...d.potentials, d.alpha / (superpose.eps * setup.scale)];
+    summed = Float64Array.from(s.free.values);
+    s.vectors.forEach((v, b) => {
+      const w = weights[b];
+      if (!v || w === 0) return;
+      for (let i = 0; i < summed!.length; i++) summed![i] += w * v[i];
+    });
+  }
   for (let i = 0; i < elements.length; i++) {
     const el = elements[i];
     let magnitude: number;
@@ -356,10 +400,16 @@ function surfacePeaks(setup: Space2d, level: Level, d: Driven, k: number): Surfa
       // Principal-value field: the mean of the fields a step δ = L/1000 to either side along the
       // normal, which cancels the ±τ/2 jump of the element's own density (O(δ²) error).
       const delta = 1e-3 * el.length;
-      fieldAt(setup, elements, far, d, el.mx + delta * el.nx, el.my + delta * el.ny, plus);
-      fieldAt(setup, elements, far, d, el.mx - delta * el.nx, el.my - delta * el.ny, minus);
-      const ex = 0.5 * (plus[1] + minus[1]);
-      const ey = 0.5 * (plus[2] + minus[2]);
+      let ex: number, ey: number;
+      if (summed) {
+        ex = summed[2 * i];
+        ey = summed[2 * i + 1];
+      } else {
+        fieldAt(setup, elements, far, d, el.mx + delta * el.nx, el.my + delta * el.ny, plus);
+        fieldAt(setup, elements, far, d, el.mx - delta * el.nx, el.my - delta * el.ny, minus);
+        ex = 0.5 * (plus[1] + minus[1]);
+        ey = 0.5 * (plus[2] + minus[2]);
+      }
       const half = 0.5 * d.tau[i];
       magnitude = Math.max(Math.hypot(ex + half * el.nx, ey + half * el.ny), Math.hypot(ex - half * el.nx, ey - half * el.ny));
     }
@@ -529,9 +579,16 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
   const dCoarse = coarse ? drive(coarse, drives, setup.infinityUnknown) : null;
   if (options.isCancelled?.()) return null;
 
+  // A reused factorization with new drives or free charges: slices and thin-element fields by
+  // superposition of stored values.
+  const freeSignature = JSON.stringify([scene.charges, scene.medium.permittivity]);
+  const used = lastUse2d.get(fine.factored);
+  const superpose = (used !== undefined && used !== JSON.stringify([drives, freeSignature])) || stored2d.has(fine.factored) || options.superpose === true;
+  lastUse2d.set(fine.factored, JSON.stringify([drives, freeSignature]));
   let t = performance.now();
-  const peaks = surfacePeaks(setup, fine, dFine, k);
-  const peaksCoarse = coarse && dCoarse ? surfacePeaks(setup, coarse, dCoarse, k) : null;
+  const stored = superpose ? { freeSignature, eps } : null;
+  const peaks = surfacePeaks(setup, fine, dFine, k, stored);
+  const peaksCoarse = coarse && dCoarse ? surfacePeaks(setup, coarse, dCoarse, k, stored) : null;
   timings.surfaceField = performance.now() - t;
   const nFine = fine.elements.length;
   const nCoarse = coarse?.elements.length ?? 0;
@@ -595,11 +652,6 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
   });
   timings.probes = performance.now() - t;
 
-  // A reused factorization with new drives or free charges: slices by superposition of stored values.
-  const freeSignature = JSON.stringify([scene.charges, scene.medium.permittivity]);
-  const used = lastUse2d.get(fine.factored);
-  const superpose = (used !== undefined && used !== JSON.stringify([drives, freeSignature])) || stored2d.has(fine.factored) || options.superpose === true;
-  lastUse2d.set(fine.factored, JSON.stringify([drives, freeSignature]));
   t = performance.now();
   const slices: SliceResult[] = [];
   let tree: Tree2d | null = null;
