@@ -670,7 +670,7 @@ function analyzeSweep(st: State, b: Builder, stmt: Statement) {
   }
   target.references.push(stmt.name.range);
   const read = readAttributes(st, stmt, STATEMENT_ATTRIBUTES.sweep, [], 'a sweep', stmt.keyword.range);
-  push(st, 'VS227', stmt.keyword.range, `Sweep of '${stmt.name.text}': run it with \`voltscape sweep FILE\`; the live solve uses the let's own value.`);
+  push(st, 'VS227', stmt.keyword.range, `Sweep of '${stmt.name.text}': the preview plots a quick live sweep on a coarse mesh; run \`voltscape sweep FILE\` for the full figures. The scene itself is solved at the let's own value.`);
   if (!complete(read, STATEMENT_ATTRIBUTES.sweep)) return;
   if (!binding || binding.value.kind !== 'scalar') return;
   const dim = binding.value.q.dim;

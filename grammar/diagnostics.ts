@@ -48,7 +48,7 @@ export const DIAGNOSTIC_CODES: Record<string, CodeInfo> = {
   VS224: { severity: 'error', title: 'Value out of its allowed range', example: 'medium permittivity 0' },
   VS225: { severity: 'error', title: 'Result is not a finite number', example: 'let a = 1 mm / 0' },
   VS226: { severity: 'error', title: 'Function or tuple used the wrong way', example: 'let a = sqrt(2 mm)' },
-  VS227: { severity: 'info', title: 'A sweep is run by `voltscape sweep`, not by the live solve', example: 'let drive = 3 kV\nsweep drive from 1 kV to 5 kV steps 5' },
+  VS227: { severity: 'info', title: 'A sweep is plotted live (coarse) and run in full by `voltscape sweep`', example: 'let drive = 3 kV\nsweep drive from 1 kV to 5 kV steps 5' },
 
   // ---- VS3xx geometry (grammar/geometry-checks.ts) ----
   VS301: { severity: 'error', title: 'Degenerate electrode shape (zero or negative size, zero normal or axis, major not above minor, from = to)', example: 'electrode a torus center (0, 0, 0) axis z major 5 mm minor 8 mm floating' },
