@@ -89,6 +89,15 @@ describe('superposition of stored unit grids', () => {
     expectSame(edited, run('12 kV', '-5 nC'));
   });
 
+  it('the full level (direct sums on a small grid) matches too', () => {
+    const full: SolveOptions = { level: 'full', convergence: false };
+    const cache = createEngineCache();
+    solveScene(scene('10 kV', '2 nC', 16), { ...full, cache });
+    const edited = solveScene(scene('12 kV', '2 nC', 16), { ...full, cache })!;
+    expect(edited.stats.timings.slicesSuperposed).toBeDefined();
+    expectSame(edited, solveScene(scene('12 kV', '2 nC', 16), full)!);
+  });
+
   it('superpose: true builds and uses the stored grids at once (for an idle worker), with the same values', () => {
     const warmed = solveScene(scene('10 kV', '2 nC'), { ...options, superpose: true })!;
     expect(warmed.stats.timings.slicesSuperposed).toBeDefined();

@@ -33,6 +33,21 @@ export function behindGround(scene: Scene3d): (p: readonly number[]) => boolean 
 /** Above this many point-panel pairs a slice grid uses the treecode for the panel charges. */
 export const TREECODE_ABOVE = 4e6;
 
+/** How slice grids sum the panel charges: the treecode above `above` point-panel pairs, at opening angle `theta`. */
+export interface GridEvaluator {
+  above: number;
+  theta: number;
+}
+/** The full picture: direct sums up to TREECODE_ABOVE pairs, then the treecode at θ = 0.3 (about 2e-4 relative). */
+export const FULL_GRID: GridEvaluator = { above: TREECODE_ABOVE, theta: 0.3 };
+/**
+ * The coarse (live) picture: the treecode from 2e5 pairs at θ = 0.5 (about 1e-3 relative, below the
+ * coarse mesh's own error): 3-5× faster than θ = 0.3 and 2-5× faster than the direct sums on the
+ * samples' coarse grids (measured: wafer-chuck 895 panels × 3,606 cells, 0.3 s at θ = 0.3, 0.09 s at
+ * θ = 0.5, 0.55 s direct).
+ */
+export const COARSE_GRID: GridEvaluator = { above: 2e5, theta: 0.5 };
+
 /** Probes: precise sums; a probe inside a solid conductor reads its potential and no field (as the grid does). */
 export function evaluateProbes(scene: Scene3d, state: FieldState3d, potentials: readonly number[]): ProbeResult[] {
   const behind = behindGround(scene);
@@ -84,12 +99,13 @@ export function evaluateSlices(
   maxGridCells: number,
   diagnostics: Diagnostic[],
   isCancelled?: () => boolean,
+  grid: GridEvaluator = FULL_GRID,
 ): SliceResult[] | null {
   const out: SliceResult[] = [];
   for (const slice of scene.slices) {
     const { outside, centre, store, shift, result, potential, fieldMagnitude } = sliceLayout(scene, slice, maxGridCells, potentials, diagnostics);
     const p = [0, 0, 0];
-    const tree = outside.length * state.sys.n > TREECODE_ABOVE ? panelTreecode(state) : null;
+    const tree = outside.length * state.sys.n > grid.above ? panelTreecode(state) : null;
     if (tree) {
       // Panels by the treecode, free charges directly (a state with the panels left out).
       const pts = new Float64Array(3 * outside.length);
@@ -98,7 +114,7 @@ export function evaluateSlices(
         pts.set(p, 3 * m);
       });
       if (isCancelled?.()) return null;
-      const panels = tree.evaluate(pts, 0.3);
+      const panels = tree.evaluate(pts, grid.theta);
       const free = new Float64Array(4);
       for (let m = 0; m < outside.length; m++) {
         free.fill(0);

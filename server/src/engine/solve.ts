@@ -19,7 +19,7 @@ import { solveLevel, warmCandidate, type Level3d } from './bem3d/level';
 import { surfacePotentialAndGradient } from './bem3d/system';
 import { changeBetweenLevels, NO_ESTIMATE, richardson, TWO_LEVEL_SAFETY } from './convergence';
 import { applyDrives } from './drives';
-import { evaluateProbes, evaluateSlices } from './evaluate';
+import { COARSE_GRID, evaluateProbes, evaluateSlices, FULL_GRID } from './evaluate';
 import { chargePotential, chargeSamples, chargeTotal } from './kernels/free-charges';
 import { chooseSolver, DENSE_MAX_UNKNOWNS, needsDenseMatrix, type SolverKind } from './linear/solver';
 import { meshForScene } from './mesh/index';
@@ -327,9 +327,11 @@ export function solve3d(scene: Scene3d, o: Solve3dOptions): Result | null {
   const probes = fine.superposed ? superposedProbes(scene, fine.level, images, fine.potentials) : evaluateProbes(scene, fine.state, fine.potentials);
   timings.probes = performance.now() - t;
   t = performance.now();
+  // The coarse (live) picture sums its grids faster (evaluate.ts COARSE_GRID); the full one as always.
+  const grid = o.level === 'coarse' ? COARSE_GRID : FULL_GRID;
   const slices = fine.superposed
-    ? superposedSlices(scene, fine.level, images, fine.potentials, o.maxGridCells, diagnostics, o.isCancelled)
-    : evaluateSlices(scene, fine.state, fine.potentials, o.maxGridCells, diagnostics, o.isCancelled);
+    ? superposedSlices(scene, fine.level, images, fine.potentials, o.maxGridCells, diagnostics, o.isCancelled, grid)
+    : evaluateSlices(scene, fine.state, fine.potentials, o.maxGridCells, diagnostics, o.isCancelled, grid);
   if (!slices) return null;
   // Named apart when the grids came from stored per-solution values (superpose.ts).
   timings[fine.superposed ? 'slicesSuperposed' : 'slices'] = performance.now() - t;

@@ -21,7 +21,7 @@ import { GRID_FAR_RATIO, INV_4PI, type EvalMode } from './bem3d/system';
 import { reflect, type Image } from './bem3d/images';
 import { FAST_EVAL_MIN_PANELS } from './fast/bem3d';
 import { panelPotentialAndGradient } from './kernels/triangle';
-import { behindGround, probePoints, sliceLayout, TREECODE_ABOVE, type SliceLayout } from './evaluate';
+import { behindGround, FULL_GRID, probePoints, sliceLayout, type GridEvaluator, type SliceLayout } from './evaluate';
 import { FieldEvaluator } from './fast/field-evaluator';
 import type { ProbeResult, SliceResult } from './result';
 
@@ -164,12 +164,12 @@ function allAt(level: Level3d, images: Image[], charges: Scene3d['charges'], fre
 }
 
 /** [φ, Ex, Ey, Ez] of one state at m points, by the evaluator evaluateSlices would choose for that many points. */
-function valuesAt(state: FieldState3d, pts: Float64Array, tree: FieldEvaluator | null): Float64Array {
+function valuesAt(state: FieldState3d, pts: Float64Array, tree: FieldEvaluator | null, theta: number): Float64Array {
   const m = pts.length / 3;
   const out = new Float64Array(4 * m);
   if (tree) {
     tree.setDensities(state.x);
-    const panels = tree.evaluate(pts, 0.3);
+    const panels = tree.evaluate(pts, theta);
     const free = new Float64Array(4);
     for (let i = 0; i < m; i++) {
       free.fill(0);
@@ -203,6 +203,7 @@ export function superposedSlices(
   maxGridCells: number,
   diagnostics: Diagnostic[],
   isCancelled?: () => boolean,
+  grid: GridEvaluator = FULL_GRID,
 ): SliceResult[] | null {
   const store = storeOf(level);
   const out: SliceResult[] = [];
@@ -212,8 +213,8 @@ export function superposedSlices(
     const L = sliceLayout(scene, slice, maxGridCells, potentials, diagnostics, store.lines.get(where));
     store.lines.set(where, { outlines: L.result.outlines, groundLines: L.result.groundLines });
     while (store.lines.size > 16) store.lines.delete(store.lines.keys().next().value as string);
-    const key = JSON.stringify([slice.plane, slice.at, slice.from, slice.to, L.nu, L.nv]);
-    const basis = sliceBasis(scene, level, images, L, key, store, isCancelled);
+    const key = JSON.stringify([slice.plane, slice.at, slice.from, slice.to, L.nu, L.nv, grid]);
+    const basis = sliceBasis(scene, level, images, L, key, store, grid, isCancelled);
     if (!basis) return null;
     const f = [0, 0, 0, 0];
     const shifted = new Map(basis.shifted.map((s) => [s.m, s]));
@@ -235,6 +236,7 @@ function sliceBasis(
   L: SliceLayout,
   key: string,
   store: LevelStore,
+  grid: GridEvaluator,
   isCancelled?: () => boolean,
 ): SliceBasis | null {
   let basis = store.slices.get(key);
@@ -247,17 +249,17 @@ function sliceBasis(
     pts.set(p, 3 * m);
   });
   // The evaluator evaluateSlices would use for this many points: the treecode (one tree, new densities per solution) or direct sums.
-  const tree = L.outside.length * level.sys.n > TREECODE_ABOVE ? new FieldEvaluator(level.sys.mesh, level.unit[0] ?? new Float64Array(level.sys.n), INV_4PI, images, {}, level.sys.panels) : null;
+  const tree = L.outside.length * level.sys.n > grid.above ? new FieldEvaluator(level.sys.mesh, level.unit[0] ?? new Float64Array(level.sys.n), INV_4PI, images, {}, level.sys.panels) : null;
   let freeValues: Float64Array | null = null;
   if (!basis) {
     let units: Float64Array[] = [];
     if (tree) {
       for (const u of level.unit) {
         if (isCancelled?.()) return null;
-        units.push(valuesAt(unitState(level, u, images, []), pts, tree));
+        units.push(valuesAt(unitState(level, u, images, []), pts, tree, grid.theta));
       }
     } else {
-      // Direct sums (at most TREECODE_ABOVE point-panel pairs): every solution in one pass.
+      // Direct sums (at most grid.above point-panel pairs): every solution in one pass.
       const all = allAt(level, images, scene.charges, level.free?.x ?? null, pts, 'grid');
       units = all.slice(0, level.unit.length);
       freeValues = level.free ? all[level.unit.length] : null;
@@ -274,7 +276,7 @@ function sliceBasis(
   } else if (basis.free?.of !== free) {
     if (isCancelled?.()) return null;
     const fs = unitState(level, free.x, images, scene.charges);
-    const values = freeValues ?? valuesAt(fs, pts, tree);
+    const values = freeValues ?? valuesAt(fs, pts, tree, grid.theta);
     basis.free = { of: free, values };
     // A cell centre on a point or line charge: every solution's value a quarter cell off it.
     basis.shifted = [];
