@@ -330,7 +330,7 @@ export function solve3d(scene: Scene3d, o: Solve3dOptions): Result | null {
   // The coarse (live) picture sums its grids faster (evaluate.ts COARSE_GRID); the full one as always.
   const grid = o.level === 'coarse' ? COARSE_GRID : FULL_GRID;
   const slices = fine.superposed
-    ? superposedSlices(scene, fine.level, images, fine.potentials, o.maxGridCells, diagnostics, o.isCancelled, grid)
+    ? superposedSlices(scene, fine.level, images, fine.potentials, o.maxGridCells, diagnostics, o.isCancelled, grid, fine.state)
     : evaluateSlices(scene, fine.state, fine.potentials, o.maxGridCells, diagnostics, o.isCancelled, grid);
   if (!slices) return null;
   // Named apart when the grids came from stored per-solution values (superpose.ts).

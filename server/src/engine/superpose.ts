@@ -21,7 +21,7 @@ import { GRID_FAR_RATIO, INV_4PI, type EvalMode } from './bem3d/system';
 import { reflect, type Image } from './bem3d/images';
 import { FAST_EVAL_MIN_PANELS } from './fast/bem3d';
 import { panelPotentialAndGradient } from './kernels/triangle';
-import { behindGround, FULL_GRID, probePoints, sliceLayout, type GridEvaluator, type SliceLayout } from './evaluate';
+import { behindGround, evaluateSlices, FULL_GRID, probePoints, sliceGrid, sliceLayout, type GridEvaluator, type SliceLayout } from './evaluate';
 import { FieldEvaluator } from './fast/field-evaluator';
 import type { ProbeResult, SliceResult } from './result';
 
@@ -49,6 +49,9 @@ interface LevelStore {
 }
 
 const stores = new WeakMap<Level3d, LevelStore>();
+
+/** Most stored values (8 bytes each) for one slice: 2e7, 160 MB; larger grids are evaluated afresh. */
+export const MAX_STORED_VALUES = 2e7;
 
 function storeOf(level: Level3d): LevelStore {
   let s = stores.get(level);
@@ -204,11 +207,20 @@ export function superposedSlices(
   diagnostics: Diagnostic[],
   isCancelled?: () => boolean,
   grid: GridEvaluator = FULL_GRID,
+  state?: FieldState3d,
 ): SliceResult[] | null {
   const store = storeOf(level);
   const out: SliceResult[] = [];
   const eps = scene.medium.permittivity;
   for (const slice of scene.slices) {
+    // A grid too large to keep K + 1 copies of: evaluated afresh, as without superposition.
+    const { nu, nv } = sliceGrid(slice, maxGridCells);
+    if (state && nu * nv * 4 * (level.unit.length + 1) > MAX_STORED_VALUES) {
+      const one = evaluateSlices({ ...scene, slices: [slice] }, state, potentials, maxGridCells, diagnostics, isCancelled, grid);
+      if (!one) return null;
+      out.push(one[0]);
+      continue;
+    }
     const where = JSON.stringify([slice.plane, slice.at, slice.from, slice.to]);
     const L = sliceLayout(scene, slice, maxGridCells, potentials, diagnostics, store.lines.get(where));
     store.lines.set(where, { outlines: L.result.outlines, groundLines: L.result.groundLines });
