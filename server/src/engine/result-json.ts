@@ -18,6 +18,8 @@ function dtypeOf(a: TypedArray): EncodedArray['dtype'] {
 }
 
 export function encodeArray(a: TypedArray): EncodedArray {
+  // In Node (the language server, the CLI) Buffer encodes the same base64 some 20-50× faster.
+  if (typeof Buffer !== 'undefined') return { dtype: dtypeOf(a), length: a.length, base64: Buffer.from(a.buffer, a.byteOffset, a.byteLength).toString('base64') };
   const bytes = new Uint8Array(a.buffer, a.byteOffset, a.byteLength);
   let binary = '';
   const chunk = 0x8000;
