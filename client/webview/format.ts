@@ -1,6 +1,7 @@
 // Number formatting with engineering units for the preview's labels, legend and readout.
 
-const prefixes: [number, string][] = [
+/** SI prefixes from giga to femto, largest first. */
+export const prefixes: [number, string][] = [
   [1e9, 'G'],
   [1e6, 'M'],
   [1e3, 'k'],

@@ -4,7 +4,7 @@
 import type { SweepResultParams } from '../../server/src/protocol';
 import type { Palette } from './colours';
 import { polylinePath } from './contours';
-import { significant } from './format';
+import { prefixes, significant } from './format';
 import { fieldUnit, niceTicks } from './line-plot';
 import { px, svgEl } from './svg';
 
@@ -16,24 +16,12 @@ export const SWEEP_FIGURES: { key: SweepFigure; label: string }[] = [
   { key: 'margin', label: 'Margin' },
 ];
 
-const PREFIXES: [number, string][] = [
-  [1e9, 'G'],
-  [1e6, 'M'],
-  [1e3, 'k'],
-  [1, ''],
-  [1e-3, 'm'],
-  [1e-6, 'µ'],
-  [1e-9, 'n'],
-  [1e-12, 'p'],
-  [1e-15, 'f'],
-];
-
 /** Scale and unit label for axis values up to `max` of an SI unit: [1e-3, 'mm'] for 0.03 m. Plain numbers and ratios keep no prefix. */
 export function axisUnit(max: number, unit: string): [number, string] {
   if (unit === 'V/m') return fieldUnit(max);
   if (!unit || !/^[A-Za-z]/.test(unit) || /[\d^]/.test(unit) || !(max > 0)) return [1, unit];
   // A prefix on the first symbol only: F/m → pF/m.
-  const [scale, prefix] = PREFIXES.find(([s]) => max >= s * 0.9995) ?? PREFIXES[PREFIXES.length - 1];
+  const [scale, prefix] = prefixes.find(([s]) => max >= s * 0.9995) ?? prefixes[prefixes.length - 1];
   return [scale, prefix + unit];
 }
 
