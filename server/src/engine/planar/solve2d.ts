@@ -21,8 +21,7 @@ import { postSolveChecks } from '../post-solve';
 import { sliceGrid as sliceDimensions } from '../evaluate';
 import { diagnostic } from '../../../../grammar/diagnostics';
 import type { Convergence, ElectrodeResult, GapResult, Outline, ProbeResult, Result, SliceResult } from '../result';
-import { gaussLegendre } from '../special/gauss-legendre';
-import { addElement, assemble, integrateCurve, type KernelAdd, type Mirror } from './bem2d';
+import { addElement, assemble, FAR_RATIO, FAR_RULE, farRules, integrateCurve, type KernelAdd, type Mirror } from './bem2d';
 import { curvePoint, splitPiece, type Element2d, type Piece } from './elements';
 import { buildTree, setDensities, treeEvaluate, type Tree2d } from './treecode2d';
 
@@ -369,7 +368,7 @@ function thinFields(setup: Space2d, elements: Element2d[], far: Float64Array, ta
 function surfacePeaks(setup: Space2d, level: Level, d: Driven, k: number, superpose: { freeSignature: string; eps: number } | null = null): SurfacePeak[] {
   const peaks: SurfacePeak[] = Array.from({ length: k }, () => ({ value: 0, at: [NaN, NaN] as Vec2, edge: false }));
   const { elements } = level;
-  const far = farNodes(elements);
+  const far = farRules(elements);
   const plus = new Float64Array(3);
   const minus = new Float64Array(3);
   let summed: Float64Array | null = null;
@@ -425,9 +424,6 @@ function surfacePeaks(setup: Space2d, level: Level, d: Driven, k: number, superp
 
 // ---- evaluation at points ----
 
-const FAR_RULE = 3;
-/** Beyond this many element lengths the cached 3-point rule is used. */
-const FAR_RATIO = 12;
 /** Potential and field at (u, v) in the scene's coordinates. */
 function evaluate(setup: Space2d, elements: Element2d[], far: Float64Array | Tree2d, d: Driven, u: number, v: number, acc: Float64Array): void {
   const [x, y, sign] = setup.toSolver(u, v);
@@ -474,21 +470,6 @@ function addSources(elements: Element2d[], far: Float64Array, tau: Float64Array,
   }
 }
 
-function farNodes(elements: Element2d[]): Float64Array {
-  const rule = gaussLegendre(FAR_RULE);
-  const out = new Float64Array(elements.length * FAR_RULE * 3);
-  const p = new Float64Array(4);
-  elements.forEach((el, j) => {
-    for (let q = 0; q < FAR_RULE; q++) {
-      curvePoint(el, el.length * rule.nodes[q], p);
-      const o = (j * FAR_RULE + q) * 3;
-      out[o] = p[0];
-      out[o + 1] = p[1];
-      out[o + 2] = el.length * rule.weights[q];
-    }
-  });
-  return out;
-}
 
 // ---- outlines of electrodes in a slice ----
 
@@ -613,7 +594,7 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
   });
 
   // Energy W = ½ΣQ_k·V_k + ½Σ_f q_f·φ_f, φ_f the potential at free charge f without its own direct term.
-  const far = farNodes(fine.elements);
+  const far = farRules(fine.elements);
   const acc = new Float64Array(3);
   let energy = 0;
   for (let i = 0; i < k; i++) energy += 0.5 * dFine.charges[i] * dFine.potentials[i];
