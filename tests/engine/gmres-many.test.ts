@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { gmres, gmresMany, type BatchOperator } from '../../server/src/engine/linear/gmres';
-import { createSolver, denseOperator } from '../../server/src/engine/linear/solver';
+import { createSolver, denseOperator, denseProductMany } from '../../server/src/engine/linear/solver';
 
 // A smooth kernel matrix 1/(|p_i − p_j| + h) over points on a space curve: strongly coupled
 // neighbours, like a boundary-element matrix (common practice test); non-symmetric by a row scaling.
@@ -90,5 +90,23 @@ describe('GMRES for several right-hand sides in lockstep', () => {
   it('returns null when cancelled', () => {
     let polls = 0;
     expect(gmresMany(countingBatch(n, a), rhs, { tolerance: 1e-12, isCancelled: () => ++polls > 3 })).toBeNull();
+  });
+});
+
+describe('dense product of several vectors', () => {
+  it('equals the one-vector products exactly, for 1 to 7 vectors (groups of four, two and one)', () => {
+    const m = 37;
+    const A = kernelMatrix(m);
+    const op = denseOperator(m, A);
+    for (let count = 1; count <= 7; count++) {
+      const xs = Array.from({ length: count }, (_, k) => Float64Array.from({ length: m }, (_, i) => Math.sin(3 * i + k)));
+      const ys = xs.map(() => new Float64Array(m));
+      denseProductMany(m, A, xs, ys);
+      xs.forEach((x, k) => {
+        const y = new Float64Array(m);
+        op.apply(x, y);
+        expect(Array.from(ys[k])).toEqual(Array.from(y));
+      });
+    }
   });
 });

@@ -83,6 +83,7 @@ export function solveLevel(
   },
 ): Level3d | null {
   const K = scene.electrodes.length;
+  const key = freeKey(scene.charges);
   let level = cached;
   if (!level) {
     const timings: Record<string, number> = {};
@@ -95,7 +96,7 @@ export function solveLevel(
     timings.assembly = performance.now() - t;
     t = performance.now();
     const solver = createSolver(op, kind);
-    const rhs = Array.from({ length: K }, (_, k) => {
+    const rhs: Float64Array[] = Array.from({ length: K }, (_, k) => {
       const b = new Float64Array(sys.n);
       for (let i = 0; i < sys.n; i++) if (mesh.electrode[i] === k) b[i] = 1;
       return b;
@@ -104,15 +105,19 @@ export function solveLevel(
     // this mesh by nearest panel (fast/transfer.ts). A direct solver has no use for them.
     const warm = options.warm;
     const initial = warm && warm.unit.length === K && kind !== 'dense-lu' ? warm.unit.map((u) => transferSolution(warm.mesh, u, mesh)) : undefined;
-    const unit = solver.solve(rhs, { initial, isCancelled: options.isCancelled });
-    if (!unit) return null;
+    // The free charges' right-hand side joins the unit ones: an iterative solver runs them in lockstep.
+    const withFree = scene.charges.length > 0;
+    if (withFree) rhs.push(freeRhs(sys, scene.charges, images));
+    const solved = solver.solve(rhs, { initial: initial && withFree ? [...initial, null] : initial, isCancelled: options.isCancelled });
+    if (!solved) return null;
+    const unit = solved.slice(0, K);
     timings.solve = performance.now() - t;
-    const iterations = [...solver.iterations];
+    const iterations = solver.iterations.slice(0, K);
     const sums = unit.map((x) => chargeSums(mesh, x, K)); // sums[k][i]
     const raw = Array.from({ length: K }, (_, i) => Array.from({ length: K }, (_, k) => sums[k][i]));
-    level = { mesh, sys, solver, kind, unit, raw, free: null, timings, iterations };
+    const free = withFree ? { key, x: solved[K], induced: chargeSums(mesh, solved[K], K) } : null;
+    level = { mesh, sys, solver, kind, unit, raw, free, timings, iterations };
   }
-  const key = freeKey(scene.charges);
   if (scene.charges.length === 0) {
     level.free = null;
   } else if (!level.free || level.free.key !== key) {

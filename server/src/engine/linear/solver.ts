@@ -5,13 +5,15 @@
 // picks a method for a problem size; createSolver builds it. New methods (e.g. a treecode-GMRES)
 // register a factory with registerSolver and add their rule to chooseSolver.
 import { luFactor, luSolve } from './dense-lu';
-import { gmres } from './gmres';
+import { batchOf, gmresMany } from './gmres';
 
 /** A square linear operator y = A·x of size n. */
 export interface LinearOperator {
   readonly n: number;
   /** y ← A·x. */
   apply(x: Float64Array, y: Float64Array): void;
+  /** ys[k] ← A·xs[k] for several vectors in one pass over the operator, when it has such a product. */
+  applyMany?(xs: Float64Array[], ys: Float64Array[]): void;
   /** The dense matrix, row-major n×n, when the operator has one (direct solvers need it). */
   readonly matrix?: Float64Array;
   /** The diagonal of A (Jacobi preconditioning), when known cheaply. */
@@ -33,12 +35,71 @@ export function denseOperator(n: number, matrix: Float64Array): LinearOperator {
         y[i] = s;
       }
     },
+    applyMany(xs, ys) {
+      denseProductMany(n, matrix, xs, ys);
+    },
     diagonal() {
       const d = new Float64Array(n);
       for (let i = 0; i < n; i++) d[i] = matrix[i * n + i];
       return d;
     },
   };
+}
+
+/**
+ * ys[k] ← A·xs[k] for all k, reading each row of A once for up to four vectors (a product is
+ * memory-bound: the matrix streams from memory, the vectors stay in cache). Each y_i is summed
+ * in the same order as one-vector apply, so the results are identical to it.
+ */
+export function denseProductMany(n: number, A: Float64Array, xs: Float64Array[], ys: Float64Array[]): void {
+  let k = 0;
+  while (k < xs.length) {
+    const left = xs.length - k;
+    if (left >= 4) {
+      const x0 = xs[k], x1 = xs[k + 1], x2 = xs[k + 2], x3 = xs[k + 3];
+      const y0 = ys[k], y1 = ys[k + 1], y2 = ys[k + 2], y3 = ys[k + 3];
+      for (let i = 0; i < n; i++) {
+        const row = i * n;
+        let s0 = 0, s1 = 0, s2 = 0, s3 = 0;
+        for (let j = 0; j < n; j++) {
+          const a = A[row + j];
+          s0 += a * x0[j];
+          s1 += a * x1[j];
+          s2 += a * x2[j];
+          s3 += a * x3[j];
+        }
+        y0[i] = s0;
+        y1[i] = s1;
+        y2[i] = s2;
+        y3[i] = s3;
+      }
+      k += 4;
+    } else if (left >= 2) {
+      const x0 = xs[k], x1 = xs[k + 1];
+      const y0 = ys[k], y1 = ys[k + 1];
+      for (let i = 0; i < n; i++) {
+        const row = i * n;
+        let s0 = 0, s1 = 0;
+        for (let j = 0; j < n; j++) {
+          const a = A[row + j];
+          s0 += a * x0[j];
+          s1 += a * x1[j];
+        }
+        y0[i] = s0;
+        y1[i] = s1;
+      }
+      k += 2;
+    } else {
+      const x0 = xs[k], y0 = ys[k];
+      for (let i = 0; i < n; i++) {
+        const row = i * n;
+        let s = 0;
+        for (let j = 0; j < n; j++) s += A[row + j] * x0[j];
+        y0[i] = s;
+      }
+      k += 1;
+    }
+  }
 }
 
 export interface LinearSolveOptions {
@@ -157,20 +218,17 @@ export function gmresSolver(op: LinearOperator, name: string): LinearSolver {
     name,
     iterations: [],
     solve(rhs, options) {
-      const out: Float64Array[] = [];
+      // All right-hand sides in lockstep: one pass of the operator per round serves them all.
+      const results = gmresMany(batchOf(op), rhs, {
+        initial: options?.initial,
+        tolerance: options?.tolerance ?? 1e-7,
+        precondition,
+        isCancelled: options?.isCancelled,
+      });
+      if (!results) return null;
       solver.iterations.length = 0;
-      for (let k = 0; k < rhs.length; k++) {
-        const r = gmres(op, rhs[k], {
-          initial: options?.initial?.[k] ?? undefined,
-          tolerance: options?.tolerance ?? 1e-7,
-          precondition,
-          isCancelled: options?.isCancelled,
-        });
-        if (!r) return null;
-        solver.iterations.push(r.iterations);
-        out.push(r.x);
-      }
-      return out;
+      solver.iterations.push(...results.map((r) => r.iterations));
+      return results.map((r) => r.x);
     },
   };
   return solver;
