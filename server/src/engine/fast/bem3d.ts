@@ -47,14 +47,11 @@ export function fastLinearSolver(op: LinearOperator): LinearSolver {
     iterations: [],
     solve(rhs, options) {
       solver.iterations.length = 0;
-      const out: Float64Array[] = [];
-      for (let k = 0; k < rhs.length; k++) {
-        const r = fast.solve(rhs[k], options?.initial?.[k] ?? null, { tol: options?.tolerance ?? 1e-8, isCancelled: options?.isCancelled });
-        if (!r) return null;
-        solver.iterations.push(r.info.iterations);
-        out.push(r.x);
-      }
-      return out;
+      // All right-hand sides in lockstep: one pass over the H-matrix per round serves them all.
+      const rs = fast.solveMany(rhs, options?.initial ?? [], { tol: options?.tolerance ?? 1e-8, isCancelled: options?.isCancelled });
+      if (!rs) return null;
+      for (const r of rs) solver.iterations.push(r.info.iterations);
+      return rs.map((r) => r.x);
     },
   };
   return solver;

@@ -4,8 +4,8 @@
 import type { EntrySource } from './aca';
 import { buildClusterTree } from './cluster-tree';
 import { applyBlockJacobi, buildBlockJacobi, type BlockJacobi } from './block-jacobi';
-import { gmres, type GmresResult } from '../linear/gmres';
-import { addBlock, hmatrixStorage, hmatvecTreeOrder, partitionBlocks, fillBlock, type HMatrix, type BlockTask, type DenseBlock, type LowRankBlock } from './hmatrix';
+import { gmresMany } from '../linear/gmres';
+import { fillBlock, hmatrixStorage, packProduct, partitionBlocks, PackWriter, type BlockPack, type BlockTask, type HMatrix } from './hmatrix';
 
 export interface FastSolverOptions {
   /** Most unknowns in a tree leaf (default 32). */
@@ -16,16 +16,27 @@ export interface FastSolverOptions {
   eps: number;
   /** Most unknowns per preconditioner block (default 256). */
   blockSize: number;
+  /** Add the coarse level (one constant per block) to the preconditioner (default true). */
+  coarseLevel: boolean;
   /** GMRES relative residual tolerance (default 1e-9). */
   tol: number;
   /** GMRES restart length (default 60). */
   restart: number;
 }
 
-export const DEFAULT_FAST_OPTIONS: FastSolverOptions = { leafSize: 32, eta: 2, eps: 3e-7, blockSize: 256, tol: 1e-9, restart: 60 };
+export const DEFAULT_FAST_OPTIONS: FastSolverOptions = { leafSize: 32, eta: 2, eps: 3e-7, blockSize: 256, coarseLevel: true, tol: 1e-9, restart: 60 };
 
-/** Fills a list of blocks, possibly on several threads; returns them in any order. */
-export type BlockFiller = (tasks: BlockTask[], order: Int32Array, eps: number) => (DenseBlock | LowRankBlock)[];
+/** Fills a list of blocks, possibly on several threads; returns them packed, in any order. */
+export type BlockFiller = (tasks: BlockTask[], order: Int32Array, eps: number) => BlockPack[];
+
+/** ys ← A·xs for K vectors stacked in tree order (K·n numbers each), possibly on several threads. */
+export type BlockProduct = (H: HMatrix, xs: Float64Array, ys: Float64Array, K: number) => void;
+
+/** The product on the calling thread. */
+export const productHere: BlockProduct = (H, xs, ys, K) => {
+  ys.fill(0);
+  for (const p of H.packs) packProduct(p, 0, p.count, xs, ys, K, H.size);
+};
 
 export interface FastSolveInfo {
   iterations: number;
@@ -45,12 +56,19 @@ export interface FastSolverStats {
   timings: Record<string, number>;
 }
 
+export interface SolveControl {
+  tol?: number;
+  isCancelled?: () => boolean;
+}
+
 export interface FastSolver {
   size: number;
   /** y = A·x in the caller's numbering. */
   apply(x: Float64Array, y: Float64Array): void;
   /** Solves A·x = b; x0 is a warm start (e.g. the solution before an edit). Null when cancelled. */
-  solve(b: Float64Array, x0?: Float64Array | null, control?: { tol?: number; isCancelled?: () => boolean }): { x: Float64Array; info: FastSolveInfo } | null;
+  solve(b: Float64Array, x0?: Float64Array | null, control?: SolveControl): { x: Float64Array; info: FastSolveInfo } | null;
+  /** Solves for several right-hand sides in lockstep, one pass over the matrix per round for all. */
+  solveMany(bs: Float64Array[], x0s?: (Float64Array | null | undefined)[], control?: SolveControl): { x: Float64Array; info: FastSolveInfo }[] | null;
   stats: FastSolverStats;
   H: HMatrix;
 }
@@ -67,6 +85,7 @@ export function buildFastSolver(
   options: Partial<FastSolverOptions> = {},
   filler?: BlockFiller,
   isCancelled?: () => boolean,
+  product: BlockProduct = productHere,
 ): FastSolver | null {
   const o = { ...DEFAULT_FAST_OPTIONS, ...options };
   const timings: Record<string, number> = {};
@@ -76,54 +95,84 @@ export function buildFastSolver(
   const tasks = partitionBlocks(tree, o.eta);
   timings.tree = performance.now() - t0;
   t0 = performance.now();
-  const H: HMatrix = { size: n, tree, dense: [], lowRank: [] };
-  if (filler) {
-    for (const b of filler(tasks, tree.order, o.eps)) addBlock(H, b);
-  } else {
+  let packs: BlockPack[];
+  if (filler) packs = filler(tasks, tree.order, o.eps);
+  else {
+    const w = new PackWriter();
     for (let k = 0; k < tasks.length; k++) {
       if ((k & 63) === 0 && isCancelled?.()) return null;
-      addBlock(H, fillBlock(src, tree.order, tasks[k], o.eps));
+      w.add(fillBlock(src, tree.order, tasks[k], o.eps));
     }
+    packs = w.finish();
   }
   if (isCancelled?.()) return null;
+  const H: HMatrix = { size: n, tree, packs };
   timings.assemble = performance.now() - t0;
   t0 = performance.now();
-  const P: BlockJacobi = buildBlockJacobi(H, o.blockSize);
+  const P: BlockJacobi = buildBlockJacobi(H, o.blockSize, o.coarseLevel);
   timings.precondition = performance.now() - t0;
   const order = tree.order;
-  const xp = new Float64Array(n), yp = new Float64Array(n);
   const store = hmatrixStorage(H);
-  const applyTree = (x: Float64Array, y: Float64Array) => hmatvecTreeOrder(H, x, y);
   const precondition = (r: Float64Array, z: Float64Array) => applyBlockJacobi(P, r, z);
+  // Stacked K vectors in tree order ↔ the caller's numbering.
+  const toTree = (x: Float64Array, into: Float64Array, at: number) => {
+    for (let k = 0; k < n; k++) into[at + k] = x[order[k]];
+  };
+  const fromTree = (from: Float64Array, at: number, y: Float64Array) => {
+    for (let k = 0; k < n; k++) y[order[k]] = from[at + k];
+  };
+  const batch = {
+    n,
+    applyMany(xs: Float64Array[], ys: Float64Array[]) {
+      const K = xs.length;
+      const sx = new Float64Array(K * n), sy = new Float64Array(K * n);
+      xs.forEach((x, v) => sx.set(x, v * n));
+      product(H, sx, sy, K);
+      ys.forEach((y, v) => y.set(sy.subarray(v * n, (v + 1) * n)));
+    },
+  };
+  const solveMany: FastSolver['solveMany'] = (bs, x0s = [], control = {}) => {
+    const bp = bs.map((b) => {
+      const t = new Float64Array(n);
+      toTree(b, t, 0);
+      return t;
+    });
+    const initial = bs.map((_, k) => {
+      const x0 = x0s[k];
+      if (!x0) return null;
+      const t = new Float64Array(n);
+      toTree(x0, t, 0);
+      return t;
+    });
+    const rs = gmresMany(batch, bp, {
+      initial,
+      tolerance: control.tol ?? o.tol ?? 1e-9,
+      restart: o.restart,
+      maxIterations: 1000,
+      precondition,
+      isCancelled: control.isCancelled,
+    });
+    if (!rs) return null;
+    return rs.map((r) => {
+      const x = new Float64Array(n);
+      fromTree(r.x, 0, x);
+      return { x, info: { iterations: r.iterations, relativeResidual: r.residual, converged: r.converged } };
+    });
+  };
   return {
     size: n,
     H,
     apply(x, y) {
-      for (let k = 0; k < n; k++) xp[k] = x[order[k]];
-      hmatvecTreeOrder(H, xp, yp);
-      for (let k = 0; k < n; k++) y[order[k]] = yp[k];
+      const xp = new Float64Array(n), yp = new Float64Array(n);
+      toTree(x, xp, 0);
+      product(H, xp, yp, 1);
+      fromTree(yp, 0, y);
     },
     solve(b, x0 = null, control = {}) {
-      const bp = new Float64Array(n);
-      for (let k = 0; k < n; k++) bp[k] = b[order[k]];
-      let x0p: Float64Array | null = null;
-      if (x0) {
-        x0p = new Float64Array(n);
-        for (let k = 0; k < n; k++) x0p[k] = x0[order[k]];
-      }
-      const r: GmresResult | null = gmres({ n, apply: applyTree }, bp, {
-        initial: x0p ?? undefined,
-        tolerance: control.tol ?? o.tol ?? 1e-9,
-        restart: o.restart,
-        maxIterations: 1000,
-        precondition: precondition ?? undefined,
-        isCancelled: control.isCancelled,
-      });
-      if (!r) return null;
-      const x = new Float64Array(n);
-      for (let k = 0; k < n; k++) x[order[k]] = r.x[k];
-      return { x, info: { iterations: r.iterations, relativeResidual: r.residual, converged: r.converged } };
+      const r = solveMany([b], [x0], control);
+      return r ? r[0] : null;
     },
+    solveMany,
     stats: {
       unknowns: n,
       denseEntries: store.dense,
@@ -131,7 +180,7 @@ export function buildFastSolver(
       bytes: store.bytes,
       maxRank: store.maxRank,
       meanRank: store.meanRank,
-      blocks: H.dense.length + H.lowRank.length,
+      blocks: store.blocks,
       timings,
     },
   };

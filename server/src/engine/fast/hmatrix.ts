@@ -1,6 +1,7 @@
 // A hierarchical matrix: the panel matrix split into blocks by a cluster tree, far blocks stored as
 // low-rank factors from adaptive cross approximation, near blocks stored dense (their entries come
-// from the exact panel integrals).
+// from the exact panel integrals). Blocks are packed into flat shared arrays in single precision,
+// so that worker threads read them without a copy and the product streams through memory.
 //
 // Why this and not a treecode: a solve needs one product per GMRES iteration and one set of
 // iterations per electrode, so the product must be cheap and accurate (1e-7 or better, so that the
@@ -31,10 +32,10 @@ export interface LowRankBlock {
   c0: number;
   n: number;
   rank: number;
-  /** rank columns of length m, one after another (single precision: see fillBlock). */
-  U: Float32Array;
+  /** rank columns of length m, one after another. */
+  U: Float64Array;
   /** rank rows of length n, one after another. */
-  V: Float32Array;
+  V: Float64Array;
 }
 
 /** A pair of clusters to be filled: dense (near) or low-rank (far). Positions are in tree order. */
@@ -46,11 +47,24 @@ export interface BlockTask {
   far: boolean;
 }
 
+/**
+ * Blocks packed in flat shared arrays. Per block, 6 numbers in `heads`: r0, m, c0, n, rank (−1 for
+ * a dense block) and the offset of its numbers in `values`: a dense block row-major (m·n), a
+ * low-rank one U (rank columns of length m) then V (rank rows of length n).
+ *
+ * Single precision throughout: its rounding (6e-8 relative) sits below the ACA tolerance, and it
+ * halves the storage and the memory traffic of every product.
+ */
+export interface BlockPack {
+  heads: Int32Array;
+  count: number;
+  values: Float32Array;
+}
+
 export interface HMatrix {
   size: number;
   tree: ClusterTree;
-  dense: DenseBlock[];
-  lowRank: LowRankBlock[];
+  packs: BlockPack[];
 }
 
 export interface HOptions {
@@ -94,10 +108,8 @@ export function fillBlock(src: EntrySource, order: Int32Array, task: BlockTask, 
   const { r0, m, c0, n } = task;
   // Blocks too small to gain from a low rank of ~8 or more are filled dense at once.
   if (task.far && (m * n) / (m + n) >= 8) {
-    // Factors are kept in single precision: rounding (6e-8 relative) sits below the ACA tolerance
-    // and halves the storage of the far field, the bulk of the matrix at large N.
     const f = acaBlock(src, order, r0, m, c0, n, eps);
-    if (f) return { r0, m, c0, n, rank: f.rank, U: Float32Array.from(f.U), V: Float32Array.from(f.V) };
+    if (f) return { r0, m, c0, n, rank: f.rank, U: f.U, V: f.V };
   }
   const data = new Float64Array(m * n);
   const row = new Float64Array(n);
@@ -112,51 +124,144 @@ export function isLowRank(b: DenseBlock | LowRankBlock): b is LowRankBlock {
   return (b as LowRankBlock).U !== undefined;
 }
 
+/** Packs blocks as they come into shared segments of about `capacity` numbers each. */
+export class PackWriter {
+  readonly packs: BlockPack[] = [];
+  private current: BlockPack | null = null;
+  private used = 0;
+
+  constructor(private readonly capacity = 1 << 22, private readonly maxBlocks = 1 << 14) {}
+
+  add(b: DenseBlock | LowRankBlock): void {
+    const low = isLowRank(b);
+    const size = low ? b.rank * (b.m + b.n) : b.m * b.n;
+    let p = this.current;
+    if (!p || p.count === this.maxBlocks || this.used + size > p.values.length) {
+      this.close();
+      p = this.current = {
+        heads: new Int32Array(new SharedArrayBuffer(24 * this.maxBlocks)),
+        count: 0,
+        values: new Float32Array(new SharedArrayBuffer(4 * Math.max(size, this.capacity))),
+      };
+      this.used = 0;
+    }
+    const h = 6 * p.count++;
+    p.heads[h] = b.r0;
+    p.heads[h + 1] = b.m;
+    p.heads[h + 2] = b.c0;
+    p.heads[h + 3] = b.n;
+    p.heads[h + 4] = low ? b.rank : -1;
+    p.heads[h + 5] = this.used;
+    if (low) {
+      p.values.set(b.U, this.used);
+      p.values.set(b.V, this.used + b.U.length);
+    } else p.values.set(b.data, this.used);
+    this.used += size;
+  }
+
+  /** The packs, the last one trimmed to its contents. */
+  finish(): BlockPack[] {
+    this.close();
+    return this.packs;
+  }
+
+  private close(): void {
+    const p = this.current;
+    if (!p) return;
+    this.current = null;
+    if (p.count === 0) return;
+    // Trim the unused tail (a copy of one segment at most).
+    const values = this.used < p.values.length ? sharedCopy(p.values.subarray(0, this.used)) : p.values;
+    const heads = 6 * p.count < p.heads.length ? sharedCopy(p.heads.subarray(0, 6 * p.count)) : p.heads;
+    this.packs.push({ heads, count: p.count, values });
+  }
+}
+
+function sharedCopy<T extends Float32Array | Int32Array>(a: T): T {
+  const C = a.constructor as new (b: SharedArrayBuffer) => T;
+  const out = new C(new SharedArrayBuffer(a.byteLength));
+  (out as unknown as { set(x: T): void }).set(a);
+  return out;
+}
+
 /** Assembles every block on this thread. */
 export function assembleHMatrix(src: EntrySource, tree: ClusterTree, options: HOptions): HMatrix {
-  const tasks = partitionBlocks(tree, options.eta);
-  const H: HMatrix = { size: tree.order.length, tree, dense: [], lowRank: [] };
-  for (const task of tasks) addBlock(H, fillBlock(src, tree.order, task, options.eps));
-  return H;
+  const w = new PackWriter();
+  for (const task of partitionBlocks(tree, options.eta)) w.add(fillBlock(src, tree.order, task, options.eps));
+  return { size: tree.order.length, tree, packs: w.finish() };
 }
 
-export function addBlock(H: HMatrix, b: DenseBlock | LowRankBlock): void {
-  if (isLowRank(b)) H.lowRank.push(b);
-  else H.dense.push(b);
-}
-
-/** y = A·x in tree order (xp, yp indexed by tree position). yp is overwritten. */
-export function hmatvecTreeOrder(H: HMatrix, xp: Float64Array, yp: Float64Array): void {
-  yp.fill(0);
-  for (const b of H.dense) {
-    const { r0, m, c0, n, data } = b;
-    for (let a = 0; a < m; a++) {
-      let s = 0;
-      const o = a * n;
-      for (let k = 0; k < n; k++) s += data[o + k] * xp[c0 + k];
-      yp[r0 + a] += s;
+/**
+ * ys[v·n + i] += Σ_j A_ij · xs[v·n + j] over blocks [b0, b1) of one pack, for the K vectors stacked
+ * in xs and ys (tree order). One pass over the stored numbers serves all K vectors: the product is
+ * bound by memory traffic, so K vectors cost little more than one.
+ */
+export function packProduct(p: BlockPack, b0: number, b1: number, xs: Float64Array, ys: Float64Array, K: number, n: number): void {
+  const H = p.heads, A = p.values;
+  const t = new Float64Array(K);
+  for (let b = b0; b < b1; b++) {
+    const h = 6 * b;
+    const r0 = H[h], m = H[h + 1], c0 = H[h + 2], nc = H[h + 3], rank = H[h + 4], off = H[h + 5];
+    if (rank < 0) {
+      for (let a = 0; a < m; a++) {
+        const o = off + a * nc;
+        for (let v = 0; v < K; v++) {
+          const xo = v * n + c0;
+          let s = 0;
+          for (let k = 0; k < nc; k++) s += A[o + k] * xs[xo + k];
+          ys[v * n + r0 + a] += s;
+        }
+      }
+    } else {
+      const vOff = off + rank * m;
+      for (let l = 0; l < rank; l++) {
+        const ov = vOff + l * nc, ou = off + l * m;
+        for (let v = 0; v < K; v++) {
+          const xo = v * n + c0;
+          let s = 0;
+          for (let k = 0; k < nc; k++) s += A[ov + k] * xs[xo + k];
+          t[v] = s;
+        }
+        for (let v = 0; v < K; v++) {
+          const tv = t[v], yo = v * n + r0;
+          for (let a = 0; a < m; a++) ys[yo + a] += tv * A[ou + a];
+        }
+      }
     }
   }
-  for (const b of H.lowRank) {
-    const { r0, m, c0, n, rank, U, V } = b;
-    for (let l = 0; l < rank; l++) {
-      let t = 0;
-      const ov = l * n;
-      for (let k = 0; k < n; k++) t += V[ov + k] * xp[c0 + k];
-      const ou = l * m;
-      for (let a = 0; a < m; a++) yp[r0 + a] += t * U[ou + a];
+}
+
+/** y = A·x in tree order on this thread (xp, yp indexed by tree position). yp is overwritten. */
+export function hmatvecTreeOrder(H: HMatrix, xp: Float64Array, yp: Float64Array): void {
+  yp.fill(0);
+  for (const p of H.packs) packProduct(p, 0, p.count, xp, yp, 1, H.size);
+}
+
+/** Calls `visit` for every stored block: rank −1 for dense. */
+export function forEachBlock(
+  H: HMatrix,
+  visit: (r0: number, m: number, c0: number, n: number, rank: number, values: Float32Array, offset: number) => void,
+): void {
+  for (const p of H.packs) {
+    for (let b = 0; b < p.count; b++) {
+      const h = 6 * b;
+      visit(p.heads[h], p.heads[h + 1], p.heads[h + 2], p.heads[h + 3], p.heads[h + 4], p.values, p.heads[h + 5]);
     }
   }
 }
 
 /** Numbers stored: dense entries and low-rank factor entries. */
-export function hmatrixStorage(H: HMatrix): { dense: number; lowRank: number; bytes: number; maxRank: number; meanRank: number } {
-  let dense = 0, lowRank = 0, maxRank = 0, rankSum = 0;
-  for (const b of H.dense) dense += b.data.length;
-  for (const b of H.lowRank) {
-    lowRank += b.U.length + b.V.length;
-    maxRank = Math.max(maxRank, b.rank);
-    rankSum += b.rank;
-  }
-  return { dense, lowRank, bytes: 8 * dense + 4 * lowRank, maxRank, meanRank: H.lowRank.length ? rankSum / H.lowRank.length : 0 };
+export function hmatrixStorage(H: HMatrix): { dense: number; lowRank: number; bytes: number; maxRank: number; meanRank: number; blocks: number } {
+  let dense = 0, lowRank = 0, maxRank = 0, rankSum = 0, lowBlocks = 0, blocks = 0;
+  forEachBlock(H, (_r0, m, _c0, n, rank) => {
+    blocks++;
+    if (rank < 0) dense += m * n;
+    else {
+      lowRank += rank * (m + n);
+      maxRank = Math.max(maxRank, rank);
+      rankSum += rank;
+      lowBlocks++;
+    }
+  });
+  return { dense, lowRank, bytes: 4 * (dense + lowRank), maxRank, meanRank: lowBlocks ? rankSum / lowBlocks : 0, blocks };
 }

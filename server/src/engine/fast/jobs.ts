@@ -1,8 +1,8 @@
 // The units of parallel work, written once and run both on the calling thread and in the workers
-// (server/src/engine/fast/worker.ts): filling H-matrix blocks and evaluating the treecode at
-// points. Each thread takes chunks from a shared atomic counter until none are left.
+// (server/src/engine/fast/worker.ts): filling H-matrix blocks, the H-matrix product and evaluating
+// the treecode at points. Each thread takes chunks from a shared atomic counter until none are left.
 import { preparePanels, type Panels } from '../kernels/triangle';
-import { fillBlock, isLowRank, type BlockTask, type DenseBlock, type LowRankBlock } from './hmatrix';
+import { fillBlock, packProduct, PackWriter, type BlockPack, type BlockTask } from './hmatrix';
 import { panelEntrySource, type ImageMap } from './panel-entries';
 import { evaluateTree, type PanelTree } from './treecode';
 
@@ -23,21 +23,14 @@ export interface AssembleJob {
   chunk: number;
 }
 
-/** Blocks packed for the trip back: per block 6 header numbers; dense data and low-rank factors. */
-export interface PackedBlocks {
-  headers: Int32Array;
-  data: Float64Array;
-  factors: Float32Array;
-}
-
 /**
  * Fills chunks of blocks until none are left. When `isCancelled` (polled per chunk, calling thread
  * only) turns true, the shared counter is pushed past the end so that every thread stops soon.
  */
-export function runAssemble(job: AssembleJob, P?: Panels, isCancelled?: () => boolean): (DenseBlock | LowRankBlock)[] {
+export function runAssemble(job: AssembleJob, P?: Panels, isCancelled?: () => boolean): BlockPack[] {
   const panels = P ?? preparePanels({ vertices: job.vertices, triangles: job.triangles });
   const src = panelEntrySource(panels, job.points, job.scale, job.images);
-  const out: (DenseBlock | LowRankBlock)[] = [];
+  const out = new PackWriter();
   const count = job.tasks.length / 5;
   for (;;) {
     if (isCancelled?.()) {
@@ -49,52 +42,67 @@ export function runAssemble(job: AssembleJob, P?: Panels, isCancelled?: () => bo
     for (let t = first; t < Math.min(count, first + job.chunk); t++) {
       const o = 5 * t;
       const task: BlockTask = { r0: job.tasks[o], m: job.tasks[o + 1], c0: job.tasks[o + 2], n: job.tasks[o + 3], far: job.tasks[o + 4] === 1 };
-      out.push(fillBlock(src, job.order, task, job.eps));
+      out.add(fillBlock(src, job.order, task, job.eps));
     }
   }
-  return out;
+  return out.finish();
 }
 
-export function packBlocks(blocks: (DenseBlock | LowRankBlock)[]): PackedBlocks {
-  let size = 0, fsize = 0;
-  for (const b of blocks) {
-    if (isLowRank(b)) fsize += b.U.length + b.V.length;
-    else size += b.data.length;
+/**
+ * One H-matrix product of K stacked vectors, shared between threads: the blocks are cut into
+ * items of similar work, each thread sums its items into its own slice of `ys` (so no two threads
+ * write the same numbers), and the caller adds the slices.
+ */
+export interface ProductJob {
+  kind: 'product';
+  packs: BlockPack[];
+  /** 3 per item: pack index, first block, end block. */
+  items: Int32Array;
+  /** K vectors of n, tree order (shared). */
+  xs: Float64Array;
+  /** threads × K × n (shared): one slice per thread. */
+  ys: Float64Array;
+  K: number;
+  n: number;
+  /** Shared: next item; next free slice. */
+  counter: Int32Array;
+  slot: Int32Array;
+}
+
+export function runProduct(job: ProductJob): void {
+  const { K, n } = job;
+  const t = Atomics.add(job.slot, 0, 1);
+  const ys = job.ys.subarray(t * K * n, (t + 1) * K * n);
+  ys.fill(0);
+  const count = job.items.length / 3;
+  for (;;) {
+    const k = Atomics.add(job.counter, 0, 1);
+    if (k >= count) break;
+    const o = 3 * k;
+    packProduct(job.packs[job.items[o]], job.items[o + 1], job.items[o + 2], job.xs, ys, K, n);
   }
-  const headers = new Int32Array(6 * blocks.length);
-  const data = new Float64Array(size);
-  const factors = new Float32Array(fsize);
-  let at = 0, fat = 0;
-  blocks.forEach((b, k) => {
-    headers.set([b.r0, b.m, b.c0, b.n, isLowRank(b) ? b.rank : -1, 0], 6 * k);
-    if (isLowRank(b)) {
-      factors.set(b.U, fat);
-      factors.set(b.V, fat + b.U.length);
-      fat += b.U.length + b.V.length;
-    } else {
-      data.set(b.data, at);
-      at += b.data.length;
+}
+
+/** Cuts the packs into about `pieces` items of similar work (numbers stored). */
+export function productItems(packs: BlockPack[], pieces: number): Int32Array {
+  let total = 0;
+  for (const p of packs) total += p.values.length;
+  const target = Math.max(1, total / pieces);
+  const items: number[] = [];
+  packs.forEach((p, q) => {
+    let first = 0, work = 0;
+    for (let b = 0; b < p.count; b++) {
+      const h = 6 * b;
+      work += p.heads[h + 4] < 0 ? p.heads[h + 1] * p.heads[h + 3] : p.heads[h + 4] * (p.heads[h + 1] + p.heads[h + 3]);
+      if (work >= target) {
+        items.push(q, first, b + 1);
+        first = b + 1;
+        work = 0;
+      }
     }
+    if (first < p.count) items.push(q, first, p.count);
   });
-  return { headers, data, factors };
-}
-
-export function unpackBlocks(p: PackedBlocks): (DenseBlock | LowRankBlock)[] {
-  const out: (DenseBlock | LowRankBlock)[] = [];
-  let at = 0, fat = 0;
-  for (let k = 0; k < p.headers.length / 6; k++) {
-    const [r0, m, c0, n, rank] = p.headers.subarray(6 * k, 6 * k + 5);
-    if (rank >= 0) {
-      const U = p.factors.slice(fat, fat + rank * m);
-      const V = p.factors.slice(fat + rank * m, fat + rank * (m + n));
-      fat += rank * (m + n);
-      out.push({ r0, m, c0, n, rank, U, V });
-    } else {
-      out.push({ r0, m, c0, n, data: p.data.slice(at, at + m * n) });
-      at += m * n;
-    }
-  }
-  return out;
+  return Int32Array.from(items);
 }
 
 /** What a thread needs to evaluate the treecode: the tree's arrays (shared) and the points. */

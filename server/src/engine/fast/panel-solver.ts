@@ -1,9 +1,9 @@
 // The fast solver for a panel mesh, with its parallel assembly: the entry points the 3D solver
 // and the benchmark call. See fast-solver.ts for the method and hmatrix.ts for why.
 import { preparePanels, type Panels } from '../kernels/triangle';
-import { buildFastSolver, type FastSolver, type FastSolverOptions } from './fast-solver';
-import { type BlockTask, type DenseBlock, type LowRankBlock } from './hmatrix';
-import { runAssemble, unpackBlocks, type AssembleJob, type PackedBlocks } from './jobs';
+import { buildFastSolver, productHere, type BlockProduct, type FastSolver, type FastSolverOptions } from './fast-solver';
+import { type BlockPack, type BlockTask, type HMatrix } from './hmatrix';
+import { productItems, runAssemble, runProduct, type AssembleJob, type ProductJob } from './jobs';
 import { panelEntrySource, panelExtent, type ImageMap } from './panel-entries';
 import { fastThreads, runParallel, shared } from './pool';
 
@@ -33,7 +33,43 @@ export function buildPanelSolver(sys: PanelSystem, options: Partial<PanelSolverO
   const src = panelEntrySource(P, sys.points, sys.scale, sys.images);
   const threads = fastThreads(options.threads);
   const filler = threads > 1 ? (tasks: BlockTask[], order: Int32Array, eps: number) => fillParallel(sys, P, tasks, order, eps, threads, isCancelled) : undefined;
-  return buildFastSolver(src, sys.points, panelExtent(P, sys.points), options, filler, isCancelled);
+  return buildFastSolver(src, sys.points, panelExtent(P, sys.points), options, filler, isCancelled, threads > 1 ? parallelProduct(threads) : productHere);
+}
+
+/** The H-matrix product shared between threads (jobs.ts runProduct); on failure, done here. */
+function parallelProduct(threads: number): BlockProduct {
+  const items = new WeakMap<HMatrix, Int32Array>();
+  return (H, xs, ys, K) => {
+    const n = H.size;
+    let list = items.get(H);
+    if (!list) {
+      list = shared(productItems(H.packs, 32 * threads));
+      items.set(H, list);
+    }
+    const job: ProductJob = {
+      kind: 'product',
+      packs: H.packs,
+      items: list,
+      xs: shared(xs),
+      ys: new Float64Array(new SharedArrayBuffer(8 * threads * K * n)),
+      K,
+      n,
+      counter: new Int32Array(new SharedArrayBuffer(4)),
+      slot: new Int32Array(new SharedArrayBuffer(4)),
+    };
+    const replies = runParallel(threads, job as unknown as Record<string, unknown>, () => runProduct(job));
+    if (!replies) {
+      productHere(H, xs, ys, K);
+      return;
+    }
+    // Add the threads' slices (only slices a thread took were written).
+    const used = Math.min(threads, Atomics.load(job.slot, 0));
+    ys.set(job.ys.subarray(0, K * n));
+    for (let t = 1; t < used; t++) {
+      const o = t * K * n;
+      for (let i = 0; i < K * n; i++) ys[i] += job.ys[o + i];
+    }
+  };
 }
 
 function fillParallel(
@@ -44,7 +80,7 @@ function fillParallel(
   eps: number,
   threads: number,
   isCancelled?: () => boolean,
-): (DenseBlock | LowRankBlock)[] {
+): BlockPack[] {
   // Far blocks first (they vary most in cost), then the dense ones; chunks small enough to balance.
   const sorted = [...tasks].sort((a, b) => Number(b.far) - Number(a.far) || b.m * b.n - a.m * a.n);
   const flat = new Int32Array(5 * sorted.length);
@@ -62,7 +98,7 @@ function fillParallel(
     counter: new Int32Array(new SharedArrayBuffer(4)),
     chunk: 16,
   };
-  let mine: (DenseBlock | LowRankBlock)[] = [];
+  let mine: BlockPack[] = [];
   const replies = runParallel(threads, job as unknown as Record<string, unknown>, () => {
     mine = runAssemble(job, P, isCancelled);
   });
@@ -72,7 +108,7 @@ function fillParallel(
     job.counter[0] = 0;
     return runAssemble(job, P, isCancelled);
   }
-  for (const r of replies) mine = mine.concat(unpackBlocks(r as PackedBlocks));
+  for (const r of replies) mine = mine.concat((r as { packs: BlockPack[] }).packs);
   return mine;
 }
 

@@ -2,7 +2,7 @@
 // Bundled on its own as fast-worker.js, or started from any bundle that calls startFastWorker()
 // when `isFastWorker()` is true.
 import { isMainThread, workerData, type MessagePort } from 'node:worker_threads';
-import { packBlocks, runAssemble, runEvaluate, type AssembleJob, type EvaluateJob } from './jobs';
+import { runAssemble, runEvaluate, runProduct, type AssembleJob, type EvaluateJob, type ProductJob } from './jobs';
 
 export function isFastWorker(): boolean {
   return !isMainThread && (workerData as { voltscapeFastWorker?: boolean } | null)?.voltscapeFastWorker === true;
@@ -15,11 +15,14 @@ export function startFastWorker(): void {
   if (started) return;
   started = true;
   const port = (workerData as { port: MessagePort }).port;
-  port.on('message', (msg: (AssembleJob | EvaluateJob) & { done: Int32Array }) => {
+  port.on('message', (msg: (AssembleJob | EvaluateJob | ProductJob) & { done: Int32Array }) => {
     try {
       if (msg.kind === 'assemble') {
-        const packed = packBlocks(runAssemble(msg));
-        port.postMessage(packed, [packed.headers.buffer as ArrayBuffer, packed.data.buffer as ArrayBuffer, packed.factors.buffer as ArrayBuffer]);
+        // The packs live in shared memory: posting them shares, not copies.
+        port.postMessage({ packs: runAssemble(msg) });
+      } else if (msg.kind === 'product') {
+        runProduct(msg);
+        port.postMessage({ ok: true });
       } else {
         runEvaluate(msg);
         port.postMessage({ ok: true });
