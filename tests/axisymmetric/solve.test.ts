@@ -153,7 +153,7 @@ describe('axisymmetric solve: capacitance of bodies of revolution at default set
           expect(s.potential[idx]).toBe(V);
         } else if (rho > 1.1 * a) {
           expect(s.inside[idx]).toBe(-1);
-          // Slice grids are summed by the treecode (planar/treecode2d.ts), good to about 1e-6 here.
+          // Slice grids are summed by interpolation on the grid (planar/grid2d.ts), good to about 1e-6 here.
           expect(rel(s.potential[idx], (V * a) / rho)).toBeLessThan(1e-5);
           expect(Math.abs(s.fieldU[idx] - (V * a * u) / rho ** 3)).toBeLessThan(1e-5 * (V * a) / rho ** 2);
           checked++;

@@ -23,7 +23,7 @@ import { diagnostic } from '../../../../grammar/diagnostics';
 import type { Convergence, ElectrodeResult, GapResult, Outline, ProbeResult, Result, SliceResult } from '../result';
 import { addElement, assemble, FAR_RATIO, FAR_RULE, farRules, integrateCurve, type KernelAdd, type Mirror } from './bem2d';
 import { curvePoint, splitPiece, type Element2d, type Piece } from './elements';
-import { buildTree, setDensities, treeEvaluate, type Tree2d } from './treecode2d';
+import { gridEvaluate, GRID_COARSE, GRID_FULL, type Grid2d } from './grid2d';
 
 type Scene2d = SceneAxisymmetric | ScenePlanar;
 
@@ -425,7 +425,7 @@ function surfacePeaks(setup: Space2d, level: Level, d: Driven, k: number, superp
 // ---- evaluation at points ----
 
 /** Potential and field at (u, v) in the scene's coordinates. */
-function evaluate(setup: Space2d, elements: Element2d[], far: Float64Array | Tree2d, d: Driven, u: number, v: number, acc: Float64Array): void {
+function evaluate(setup: Space2d, elements: Element2d[], far: Float64Array, d: Driven, u: number, v: number, acc: Float64Array): void {
   const [x, y, sign] = setup.toSolver(u, v);
   fieldAt(setup, elements, far, d, x, y, acc);
   acc[1] *= sign;
@@ -433,16 +433,15 @@ function evaluate(setup: Space2d, elements: Element2d[], far: Float64Array | Tre
 
 /**
  * Potential and field at (x, y) in the solver's half-plane, from every element, image and free charge:
- * by direct summation (`far` the cached 3-point rules), or by the treecode (slice grids).
+ * by direct summation (`far` the cached 3-point rules); slice grids go through grid2d.ts.
  */
-function fieldAt(setup: Space2d, elements: Element2d[], far: Float64Array | Tree2d, d: Driven, x: number, y: number, acc: Float64Array): void {
+function fieldAt(setup: Space2d, elements: Element2d[], far: Float64Array, d: Driven, x: number, y: number, acc: Float64Array): void {
   acc[0] = setup.infinityUnknown ? d.infinity : 0;
   acc[1] = 0;
   acc[2] = 0;
   const mirror = setup.mirror;
   const kernel = setup.kernel;
-  const sum = (px: number, py: number, out: Float64Array) =>
-    far instanceof Float64Array ? addSources(elements, far, d.tau, kernel, px, py, out) : treeEvaluate(far, kernel, px, py, out);
+  const sum = (px: number, py: number, out: Float64Array) => addSources(elements, far, d.tau, kernel, px, py, out);
   sum(x, y, acc);
   if (mirror) {
     // Images of opposite sign: φ_img(p) = −φ(Mp), E_img(p) = −M·E(Mp).
@@ -635,13 +634,8 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
 
   t = performance.now();
   const slices: SliceResult[] = [];
-  let tree: Tree2d | null = null;
   for (const s of scene.slices) {
-    if (!tree) {
-      tree = buildTree(fine.elements);
-      setDensities(tree, dFine.tau);
-    }
-    const slice = sliceGrid(scene, setup, fine, tree, dFine, s);
+    const slice = sliceGrid(scene, setup, fine, dFine, s);
     if (!slice) return null;
     slices.push(slice);
     if (options.isCancelled?.()) return null;
@@ -682,23 +676,17 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
    * raw net-charge solution) and G_free those of the free charges (their induced densities and their
    * direct field), φ = φ_∞ + Σ_b w_b·G_b + G_free. Kept per cached factorization, slice and grid.
    */
-  function sliceBasis2d(level: Level, tree: Tree2d, s: Scene2d['slices'][number], nu: number, nv: number, outside: number[], cellU: (i: number) => number, cellV: (i: number) => number) {
+  function sliceBasis2d(level: Level, s: Scene2d['slices'][number], grid: Grid2d, mask: Uint8Array, outside: number[]) {
     let bySlice = stored2d.get(level.factored);
     if (!bySlice) stored2d.set(level.factored, (bySlice = new Map()));
-    const key = JSON.stringify([s.plane, s.at, s.from, s.to, nu, nv]);
+    const key = JSON.stringify([s.plane, s.at, s.from, s.to, grid.nu, grid.nv]);
     let basis = bySlice.get(key);
     if (basis && (basis.outside.length !== outside.length || basis.outside.some((c, i) => c !== outside[i]))) basis = undefined;
     const n = level.elements.length;
     const valuesOf = (tau: Float64Array, withFree: boolean) => {
-      const st: Space2d = { ...setup, infinityUnknown: false, free: withFree ? setup.free : [] };
-      const dd: Driven = { potentials: [], charges: [], tau, infinity: 0, singular: false, alpha: 0 };
-      setDensities(tree, tau);
+      const all = gridValues(level.elements, tau, withFree ? setup.free : [], 0, grid, mask);
       const out = new Float64Array(3 * outside.length);
-      const acc = new Float64Array(3);
-      outside.forEach((idx, m) => {
-        evaluate(st, level.elements, tree, dd, cellU(idx), cellV(idx), acc);
-        out.set(acc, 3 * m);
-      });
+      outside.forEach((idx, m) => out.set(all.subarray(3 * idx, 3 * idx + 3), 3 * m));
       return out;
     };
     if (!basis) {
@@ -714,11 +702,33 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
       while (bySlice.size > 8) bySlice.delete(bySlice.keys().next().value as string);
     }
     if (basis.free?.key !== freeSignature) basis.free = { key: freeSignature, values: valuesOf(level.units[k], true) };
-    setDensities(tree, dFine.tau);
     return basis;
   }
 
-  function sliceGrid(scene: Scene2d, setup: Space2d, level: Level, tree: Tree2d, d: Driven, s: Scene2d['slices'][number]): SliceResult | null {
+  /**
+   * (φ, E_u, E_v) at the masked cells of a grid (3 per cell, scene coordinates): the elements'
+   * densities tau by target-side interpolation (grid2d.ts), the free charges and the potential at
+   * infinity summed directly.
+   */
+  function gridValues(elements: Element2d[], tau: Float64Array, free: FreeSource[], infinity: number, grid: Grid2d, mask: Uint8Array): Float64Array {
+    const out = new Float64Array(3 * grid.nu * grid.nv);
+    const acc = new Float64Array(3);
+    for (let idx = 0; idx < mask.length; idx++) {
+      if (!mask[idx]) continue;
+      const [x, y, sign] = setup.toSolver(grid.u0 + ((idx % grid.nu) + 0.5) * grid.du, grid.v0 + (Math.floor(idx / grid.nu) + 0.5) * grid.dv);
+      acc[0] = infinity;
+      acc[1] = acc[2] = 0;
+      for (const f of free) f.add(x, y, true, acc, false);
+      out[3 * idx] = acc[0];
+      out[3 * idx + 1] = sign * acc[1];
+      out[3 * idx + 2] = acc[2];
+    }
+    const accuracy = options.level === 'coarse' ? GRID_COARSE : GRID_FULL;
+    gridEvaluate({ elements, tau, kernel: setup.kernel, mirror: setup.mirror, fold: setup.space === 'axisymmetric', logScale: setup.space === 'planar' ? setup.scale : undefined }, grid, mask, out, accuracy);
+    return out;
+  }
+
+  function sliceGrid(scene: Scene2d, setup: Space2d, level: Level, d: Driven, s: Scene2d['slices'][number]): SliceResult | null {
     const u0 = Math.min(s.from[0], s.to[0]);
     const v0 = Math.min(s.from[1], s.to[1]);
     const w = Math.abs(s.to[0] - s.from[0]);
@@ -754,17 +764,18 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
         outside.push(idx);
       }
     }
-    const cellU = (idx: number) => u0 + ((idx % nu) + 0.5) * du;
-    const cellV = (idx: number) => v0 + (Math.floor(idx / nu) + 0.5) * dv;
     const put = (idx: number, phi: number, eu: number, ev: number) => {
       potential[idx] = phi;
       fieldU[idx] = eu;
       fieldV[idx] = ev;
       fieldMagnitude[idx] = Math.hypot(eu, ev);
     };
+    const grid: Grid2d = { nu, nv, u0, v0, du, dv };
+    const mask = new Uint8Array(size);
+    for (const idx of outside) mask[idx] = 1;
     if (superpose) {
       // Σ_e V_e·G_e + α·G_net/(ε·scale) + G_free + the potential at infinity (see sliceBasis2d).
-      const basis = sliceBasis2d(level, tree, s, nu, nv, outside, cellU, cellV);
+      const basis = sliceBasis2d(level, s, grid, mask, outside);
       if (!basis) return null;
       const weights = [...d.potentials, d.alpha / (eps * setup.scale)];
       for (let m = 0; m < outside.length; m++) {
@@ -780,10 +791,8 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
         put(outside[m], phi + g[3 * m], eu + g[3 * m + 1], ev + g[3 * m + 2]);
       }
     } else {
-      for (const idx of outside) {
-        evaluate(setup, level.elements, tree, d, cellU(idx), cellV(idx), a);
-        put(idx, a[0], a[1], a[2]);
-      }
+      const values = gridValues(level.elements, d.tau, setup.free, setup.infinityUnknown ? d.infinity : 0, grid, mask);
+      for (const idx of outside) put(idx, values[3 * idx], values[3 * idx + 1], values[3 * idx + 2]);
     }
     const outlines: Outline[] = [];
     for (let e = 0; e < k; e++) {
