@@ -12,7 +12,8 @@
 //   I   = Σ t0·f_i − |d|·Σ β_i,
 //   ∇I  = −Σ û_i·f_i − sign(d)·n·Σ β_i.
 // In the panel's plane (d = 0) the normal part is the principal value (zero): the jump ±σ/(2ε) of
-// the normal field across a charged sheet is left to the caller.
+// the normal field across a charged sheet is left to the caller. Evaluated with one square root per
+// vertex and one logarithm and one arctangent per edge (closedForm).
 // Far from the panel a 7-point Gauss rule of degree 5 (Dunavant, Int. J. Numer. Methods Eng. 21,
 // 1129, 1985) is used instead: beyond FAR_RATIO panel diameters from the centroid its relative error
 // is below 2e-7 for 1/R and 1.5e-6 for the gradient (measured over random directions; at 2 diameters
@@ -135,70 +136,90 @@ export function preparePanels(mesh: Pick<Mesh, 'vertices' | 'triangles'>): Panel
   return P;
 }
 
-/** ln(R + l) computed without cancellation: when l < 0, R + l = R0²/(R − l). */
-function logRPlusL(R: number, l: number, R0sq: number): number {
-  return l >= 0 ? Math.log(R + l) : Math.log(R0sq / (R - l));
+/** R + l computed without cancellation: when l < 0, R + l = R0²/(R − l). */
+function rPlusL(R: number, l: number, R0sq: number): number {
+  return l >= 0 ? R + l : R0sq / (R - l);
+}
+
+/** Scratch of closedForm: [Σ t0·f, Σ β, −Σ û_x·f, −Σ û_y·f, −Σ û_z·f, d]. */
+const edgeSums = new Float64Array(6);
+
+/**
+ * The edge sums of the closed forms (header) for panel j at (x, y, z), into edgeSums. Each vertex's
+ * distance is taken once (shared by its two edges); per edge, f = ln((R⁺ + l⁺)/(R⁻ + l⁻)) is one
+ * logarithm of the ratio, and β one arctangent: atan2(y⁺, x⁺) − atan2(y⁻, x⁻) =
+ * atan2(y⁺x⁻ − x⁺y⁻, x⁺x⁻ + y⁺y⁻), exact here since x± = R0² + |d|R± > 0 puts both angles in
+ * (−π/2, π/2) and their difference in (−π, π).
+ */
+function closedForm(P: Panels, j: number, x: number, y: number, z: number): void {
+  const v = P.vertices, o = 9 * j;
+  const nx = P.normal[3 * j], ny = P.normal[3 * j + 1], nz = P.normal[3 * j + 2];
+  const d = nx * (x - v[o]) + ny * (y - v[o + 1]) + nz * (z - v[o + 2]);
+  const ad = Math.abs(d);
+  const tiny = 1e-24 * P.diameter[j] * P.diameter[j];
+  const ax0 = v[o] - x, ay0 = v[o + 1] - y, az0 = v[o + 2] - z;
+  const ax1 = v[o + 3] - x, ay1 = v[o + 4] - y, az1 = v[o + 5] - z;
+  const ax2 = v[o + 6] - x, ay2 = v[o + 7] - y, az2 = v[o + 8] - z;
+  const R0 = Math.sqrt(ax0 * ax0 + ay0 * ay0 + az0 * az0);
+  const R1 = Math.sqrt(ax1 * ax1 + ay1 * ay1 + az1 * az1);
+  const R2 = Math.sqrt(ax2 * ax2 + ay2 * ay2 + az2 * az2);
+  let sumLog = 0, sumBeta = 0, gx = 0, gy = 0, gz = 0;
+  for (let k = 0; k < 3; k++) {
+    // Edge k runs from vertex k (a, distance Rm) to vertex k + 1 (b, distance Rp).
+    const ax = k === 0 ? ax0 : k === 1 ? ax1 : ax2;
+    const ay = k === 0 ? ay0 : k === 1 ? ay1 : ay2;
+    const az = k === 0 ? az0 : k === 1 ? az1 : az2;
+    const bx = k === 0 ? ax1 : k === 1 ? ax2 : ax0;
+    const by = k === 0 ? ay1 : k === 1 ? ay2 : ay0;
+    const bz = k === 0 ? az1 : k === 1 ? az2 : az0;
+    const Rm = k === 0 ? R0 : k === 1 ? R1 : R2;
+    const Rp = k === 0 ? R1 : k === 1 ? R2 : R0;
+    const a = o + 3 * k;
+    const ux = P.outward[a], uy = P.outward[a + 1], uz = P.outward[a + 2];
+    const tx = P.tangent[a], ty = P.tangent[a + 1], tz = P.tangent[a + 2];
+    const t0 = ax * ux + ay * uy + az * uz;
+    const lm = ax * tx + ay * ty + az * tz;
+    const lp = bx * tx + by * ty + bz * tz;
+    const R0sq = t0 * t0 + d * d + tiny;
+    const f = Math.log(rPlusL(Rp, lp, R0sq) / rPlusL(Rm, lm, R0sq));
+    if (t0 !== 0) sumLog += t0 * f;
+    gx -= ux * f;
+    gy -= uy * f;
+    gz -= uz * f;
+    if (ad > 0) {
+      const yp = t0 * lp, xp = R0sq + ad * Rp, ym = t0 * lm, xm = R0sq + ad * Rm;
+      sumBeta += Math.atan2(yp * xm - xp * ym, xp * xm + yp * ym);
+    }
+  }
+  edgeSums[0] = sumLog;
+  edgeSums[1] = sumBeta;
+  edgeSums[2] = gx;
+  edgeSums[3] = gy;
+  edgeSums[4] = gz;
+  edgeSums[5] = d;
 }
 
 /** I(r) = ∫ 1/R dA' over panel j, by the closed form (valid at any distance, used near the panel). */
 export function potentialExact(P: Panels, j: number, x: number, y: number, z: number): number {
-  const v = P.vertices, o = 9 * j;
-  const nx = P.normal[3 * j], ny = P.normal[3 * j + 1], nz = P.normal[3 * j + 2];
-  const d = nx * (x - v[o]) + ny * (y - v[o + 1]) + nz * (z - v[o + 2]);
-  const ad = Math.abs(d);
-  const tiny = 1e-24 * P.diameter[j] * P.diameter[j];
-  let sumLog = 0;
-  let sumBeta = 0;
-  for (let k = 0; k < 3; k++) {
-    const a = o + 3 * k, b = o + 3 * ((k + 1) % 3);
-    const ax = v[a] - x, ay = v[a + 1] - y, az = v[a + 2] - z;
-    const bx = v[b] - x, by = v[b + 1] - y, bz = v[b + 2] - z;
-    const ux = P.outward[a], uy = P.outward[a + 1], uz = P.outward[a + 2];
-    const tx = P.tangent[a], ty = P.tangent[a + 1], tz = P.tangent[a + 2];
-    const t0 = ax * ux + ay * uy + az * uz;
-    const lm = ax * tx + ay * ty + az * tz;
-    const lp = bx * tx + by * ty + bz * tz;
-    const R0sq = t0 * t0 + d * d + tiny;
-    const Rm = Math.sqrt(ax * ax + ay * ay + az * az);
-    const Rp = Math.sqrt(bx * bx + by * by + bz * bz);
-    if (t0 !== 0) sumLog += t0 * (logRPlusL(Rp, lp, R0sq) - logRPlusL(Rm, lm, R0sq));
-    if (ad > 0) sumBeta += Math.atan2(t0 * lp, R0sq + ad * Rp) - Math.atan2(t0 * lm, R0sq + ad * Rm);
-  }
-  return sumLog - ad * sumBeta;
+  closedForm(P, j, x, y, z);
+  return edgeSums[0] - Math.abs(edgeSums[5]) * edgeSums[1];
+}
+
+/** The gradient part of the closed form from edgeSums, to out[at..at+2]. */
+function gradientFromSums(P: Panels, j: number, out: Float64Array, at: number): void {
+  const d = edgeSums[5];
+  const sumBeta = edgeSums[1];
+  // Within rounding of the plane (centroids computed in floating point), take the principal value.
+  const s = Math.abs(d) <= 1e-12 * P.diameter[j] ? 0 : d > 0 ? sumBeta : -sumBeta;
+  out[at] = edgeSums[2] - s * P.normal[3 * j];
+  out[at + 1] = edgeSums[3] - s * P.normal[3 * j + 1];
+  out[at + 2] = edgeSums[4] - s * P.normal[3 * j + 2];
 }
 
 /** ∇I(r) over panel j by the closed form, written to out[at..at+2]. */
 export function gradientExact(P: Panels, j: number, x: number, y: number, z: number, out: Float64Array, at = 0): void {
-  const v = P.vertices, o = 9 * j;
-  const nx = P.normal[3 * j], ny = P.normal[3 * j + 1], nz = P.normal[3 * j + 2];
-  const d = nx * (x - v[o]) + ny * (y - v[o + 1]) + nz * (z - v[o + 2]);
-  const ad = Math.abs(d);
-  const tiny = 1e-24 * P.diameter[j] * P.diameter[j];
-  let gx = 0, gy = 0, gz = 0;
-  let sumBeta = 0;
-  for (let k = 0; k < 3; k++) {
-    const a = o + 3 * k, b = o + 3 * ((k + 1) % 3);
-    const ax = v[a] - x, ay = v[a + 1] - y, az = v[a + 2] - z;
-    const bx = v[b] - x, by = v[b + 1] - y, bz = v[b + 2] - z;
-    const ux = P.outward[a], uy = P.outward[a + 1], uz = P.outward[a + 2];
-    const tx = P.tangent[a], ty = P.tangent[a + 1], tz = P.tangent[a + 2];
-    const t0 = ax * ux + ay * uy + az * uz;
-    const lm = ax * tx + ay * ty + az * tz;
-    const lp = bx * tx + by * ty + bz * tz;
-    const R0sq = t0 * t0 + d * d + tiny;
-    const Rm = Math.sqrt(ax * ax + ay * ay + az * az);
-    const Rp = Math.sqrt(bx * bx + by * by + bz * bz);
-    const f = logRPlusL(Rp, lp, R0sq) - logRPlusL(Rm, lm, R0sq);
-    gx -= ux * f;
-    gy -= uy * f;
-    gz -= uz * f;
-    if (ad > 0) sumBeta += Math.atan2(t0 * lp, R0sq + ad * Rp) - Math.atan2(t0 * lm, R0sq + ad * Rm);
-  }
-  // Within rounding of the plane (centroids computed in floating point), take the principal value.
-  const s = ad <= 1e-12 * P.diameter[j] ? 0 : d > 0 ? sumBeta : -sumBeta;
-  out[at] = gx - s * nx;
-  out[at + 1] = gy - s * ny;
-  out[at + 2] = gz - s * nz;
+  closedForm(P, j, x, y, z);
+  gradientFromSums(P, j, out, at);
 }
 
 /** I(r) over panel j by the 7-point Gauss rule (accurate far from the panel only). */
@@ -272,34 +293,7 @@ export function panelPotentialAndGradient(P: Panels, j: number, x: number, y: nu
     out[at + 3] = gz;
     return;
   }
-  const v = P.vertices, o = 9 * j;
-  const nx = P.normal[3 * j], ny = P.normal[3 * j + 1], nz = P.normal[3 * j + 2];
-  const d = nx * (x - v[o]) + ny * (y - v[o + 1]) + nz * (z - v[o + 2]);
-  const ad = Math.abs(d);
-  const tiny = 1e-24 * P.diameter[j] * P.diameter[j];
-  let sumLog = 0, sumBeta = 0, gx = 0, gy = 0, gz = 0;
-  for (let k = 0; k < 3; k++) {
-    const a = o + 3 * k, b = o + 3 * ((k + 1) % 3);
-    const ax = v[a] - x, ay = v[a + 1] - y, az = v[a + 2] - z;
-    const bx = v[b] - x, by = v[b + 1] - y, bz = v[b + 2] - z;
-    const ux = P.outward[a], uy = P.outward[a + 1], uz = P.outward[a + 2];
-    const tx = P.tangent[a], ty = P.tangent[a + 1], tz = P.tangent[a + 2];
-    const t0 = ax * ux + ay * uy + az * uz;
-    const lm = ax * tx + ay * ty + az * tz;
-    const lp = bx * tx + by * ty + bz * tz;
-    const R0sq = t0 * t0 + d * d + tiny;
-    const Rm = Math.sqrt(ax * ax + ay * ay + az * az);
-    const Rp = Math.sqrt(bx * bx + by * by + bz * bz);
-    const f = logRPlusL(Rp, lp, R0sq) - logRPlusL(Rm, lm, R0sq);
-    if (t0 !== 0) sumLog += t0 * f;
-    gx -= ux * f;
-    gy -= uy * f;
-    gz -= uz * f;
-    if (ad > 0) sumBeta += Math.atan2(t0 * lp, R0sq + ad * Rp) - Math.atan2(t0 * lm, R0sq + ad * Rm);
-  }
-  const s = ad <= 1e-12 * P.diameter[j] ? 0 : d > 0 ? sumBeta : -sumBeta;
-  out[at] = sumLog - ad * sumBeta;
-  out[at + 1] = gx - s * nx;
-  out[at + 2] = gy - s * ny;
-  out[at + 3] = gz - s * nz;
+  closedForm(P, j, x, y, z);
+  out[at] = edgeSums[0] - Math.abs(edgeSums[5]) * edgeSums[1];
+  gradientFromSums(P, j, out, at + 1);
 }
