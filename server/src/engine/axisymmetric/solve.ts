@@ -90,6 +90,7 @@ export function solveAxisymmetric(scene: SceneAxisymmetric, options: Solve2dOpti
     {
       space: 'axisymmetric',
       kernel: addRing,
+      line: null,
       mirror,
       infinityUnknown: false,
       pieces,

@@ -14,6 +14,12 @@ import { curvePoint, type Curve2d, type Element2d } from './elements';
 /** Adds w·(G, E_x, E_y) at (x, y) of a unit reduced density at source point (xs, ys) into acc[0..2]. */
 export type KernelAdd = (xs: number, ys: number, x: number, y: number, w: number, field: boolean, acc: Float64Array) => void;
 
+/**
+ * Adds w·(G, E_x, E_y) at (x, y) of unit reduced density on a whole straight element, in closed form
+ * (a kernel may offer one; it then replaces quadrature on straight elements everywhere).
+ */
+export type LineAdd = (el: Curve2d, x: number, y: number, w: number, field: boolean, acc: Float64Array) => void;
+
 /** Coefficient of −ln ρ in both kernels, per unit reduced density: 1/(2π). */
 export const LOG_COEFFICIENT = 1 / (2 * Math.PI);
 
@@ -58,15 +64,24 @@ export function integrateCurve(
   }
 }
 
+const imageScratch = new Float64Array(3);
+
+/** Adds the whole element's w·(G, E) at (x, y): in closed form when the kernel has one for straight elements, else by quadrature. */
+export function addCurve(el: Curve2d, x: number, y: number, kernel: KernelAdd, line: LineAdd | null, w: number, field: boolean, acc: Float64Array): void {
+  if (line && el.kind === 'line') line(el, x, y, w, field, acc);
+  else integrateCurve(el, 0, el.length, x, y, kernel, w, field, acc);
+}
+
 /** Adds the potential and field at (x, y) of unit reduced density on el, and of its image when mirrored. */
-export function addElement(el: Curve2d, x: number, y: number, kernel: KernelAdd, mirror: Mirror | null, w: number, field: boolean, acc: Float64Array): void {
-  integrateCurve(el, 0, el.length, x, y, kernel, w, field, acc);
+export function addElement(el: Curve2d, x: number, y: number, kernel: KernelAdd, mirror: Mirror | null, w: number, field: boolean, acc: Float64Array, line: LineAdd | null = null): void {
+  addCurve(el, x, y, kernel, line, w, field, acc);
   if (!mirror) return;
   // Image of opposite sign: φ_img(p) = −φ(Mp), E_img(p) = −M·E(Mp).
-  const img = new Float64Array(3);
+  const img = imageScratch;
+  img[0] = img[1] = img[2] = 0;
   const mx = mirror.axis === 0 ? 2 * mirror.at - x : x;
   const my = mirror.axis === 1 ? 2 * mirror.at - y : y;
-  integrateCurve(el, 0, el.length, mx, my, kernel, w, field, img);
+  addCurve(el, mx, my, kernel, line, w, field, img);
   acc[0] -= img[0];
   if (field) {
     acc[1] += mirror.axis === 0 ? img[1] : -img[1];
@@ -105,7 +120,7 @@ export function selfPotential(el: Element2d, kernel: KernelAdd): number {
  * The collocation matrix A (row-major n×n, n = elements): A_ij = potential at collocation point i
  * of unit reduced density on element j (with its image when mirrored).
  */
-export function assemble(elements: Element2d[], kernel: KernelAdd, mirror: Mirror | null, isCancelled?: () => boolean): Float64Array | null {
+export function assemble(elements: Element2d[], kernel: KernelAdd, mirror: Mirror | null, isCancelled?: () => boolean, line: LineAdd | null = null): Float64Array | null {
   const n = elements.length;
   const a = new Float64Array(n * n);
   const acc = new Float64Array(3);
@@ -114,12 +129,12 @@ export function assemble(elements: Element2d[], kernel: KernelAdd, mirror: Mirro
     if (isCancelled && (i & 31) === 0 && isCancelled()) return null;
     const ei = elements[i];
     const row = i * n;
-    addRow(elements, far, kernel, ei.mx, ei.my, i, 1, a, row, acc);
+    addRow(elements, far, kernel, line, ei.mx, ei.my, i, 1, a, row, acc);
     a[row + i] += selfPotential(ei, kernel);
     if (mirror) {
       const mx = mirror.axis === 0 ? 2 * mirror.at - ei.mx : ei.mx;
       const my = mirror.axis === 1 ? 2 * mirror.at - ei.my : ei.my;
-      addRow(elements, far, kernel, mx, my, -1, -1, a, row, acc);
+      addRow(elements, far, kernel, line, mx, my, -1, -1, a, row, acc);
     }
   }
   return a;
@@ -147,11 +162,16 @@ export function farRules(elements: Element2d[]): Float64Array {
 }
 
 /** a[row + j] += sign · (potential at (x, y) of unit density on element j), for every j but `skip`. */
-function addRow(elements: Element2d[], far: Float64Array, kernel: KernelAdd, x: number, y: number, skip: number, sign: number, a: Float64Array, row: number, acc: Float64Array): void {
+function addRow(elements: Element2d[], far: Float64Array, kernel: KernelAdd, line: LineAdd | null, x: number, y: number, skip: number, sign: number, a: Float64Array, row: number, acc: Float64Array): void {
   for (let j = 0; j < elements.length; j++) {
     if (j === skip) continue;
     const el = elements[j];
     acc[0] = 0;
+    if (line && el.kind === 'line') {
+      line(el, x, y, 1, false, acc);
+      a[row + j] += sign * acc[0];
+      continue;
+    }
     const dx = x - el.mx;
     const dy = y - el.my;
     const reach = FAR_RATIO * el.length;
@@ -162,25 +182,5 @@ function addRow(elements: Element2d[], far: Float64Array, kernel: KernelAdd, x: 
       kernel(far[o + 6], far[o + 7], x, y, far[o + 8], false, acc);
     } else integrateCurve(el, 0, el.length, x, y, kernel, 1, false, acc);
     a[row + j] += sign * acc[0];
-  }
-}
-
-/**
- * Potential (acc[0]) and field (acc[1..2]) at (x, y) of the reduced densities tau on all elements,
- * each with its image. Adds into acc.
- */
-export function addAllElements(
-  elements: Element2d[],
-  tau: Float64Array,
-  x: number,
-  y: number,
-  kernel: KernelAdd,
-  mirror: Mirror | null,
-  field: boolean,
-  acc: Float64Array,
-): void {
-  for (let j = 0; j < elements.length; j++) {
-    if (tau[j] === 0) continue;
-    addElement(elements[j], x, y, kernel, mirror, tau[j], field, acc);
   }
 }

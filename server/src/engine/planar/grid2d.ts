@@ -16,7 +16,7 @@
 // the direct sum. One code serves the ring kernel and the ln kernel, images of a ground plane and
 // (axisymmetric) cells at r < 0, which see the mirror image of the half-plane.
 import { gaussLegendre } from '../special/gauss-legendre';
-import { integrateCurve, type KernelAdd, type Mirror } from './bem2d';
+import { integrateCurve, type KernelAdd, type LineAdd, type Mirror } from './bem2d';
 import { curvePoint, type Element2d } from './elements';
 
 /** A slice grid: cell (i, j) has its centre at (u0 + (i + ½)du, v0 + (j + ½)dv), index j·nu + i. */
@@ -34,6 +34,8 @@ export interface GridSources {
   elements: Element2d[];
   tau: Float64Array;
   kernel: KernelAdd;
+  /** The kernel over a whole straight element in closed form, if it has one (bem2d.ts LineAdd). */
+  line?: LineAdd | null;
   mirror: Mirror | null;
   /** Axisymmetric: a cell at u < 0 takes the values at |u|, with E_u reversed. */
   fold: boolean;
@@ -162,8 +164,13 @@ export function gridEvaluate(src: GridSources, grid: Grid2d, mask: Uint8Array, o
       acc[2] += m.axis === 1 ? img[2] : -img[2];
     } else addElementAt(el, j, x, y, acc);
   };
+  const line = src.line ?? null;
   const addElementAt = (el: Element2d, j: number, x: number, y: number, into: Float64Array) => {
     const t = tau[j];
+    if (line && el.kind === 'line') {
+      line(el, x, y, t, true, into);
+      return;
+    }
     const dx = x - el.mx;
     const dy = y - el.my;
     const d2 = dx * dx + dy * dy;

@@ -8,7 +8,7 @@ import { EPSILON_0 } from '../../../../grammar/scene';
 import { characteristicLength } from '../../../../grammar/geometry';
 import type { Result } from '../result';
 import { elementSize, usablePiece } from '../axisymmetric/solve';
-import type { KernelAdd, Mirror } from './bem2d';
+import type { KernelAdd, LineAdd, Mirror } from './bem2d';
 import { outlinePieces } from './outline';
 import { solve2d, type FreeSource, type Solve2dOptions } from './solve2d';
 
@@ -28,6 +28,39 @@ export function lineChargeKernel(scale: number): KernelAdd {
     const c = w / (2 * Math.PI * r2);
     acc[1] += c * dx;
     acc[2] += c * dy;
+  };
+}
+
+/**
+ * A whole straight element of unit line-charge density per metre, in closed form (per unit ε; the
+ * integrals of the line-charge kernel above along the segment, e.g. Gradshteyn and Ryzhik 2.733.1 and
+ * 2.172). With ξ, η the target's coordinates along the element and across it, u = s − ξ running from
+ * u0 = −ξ to u1 = L − ξ, r_k² = u_k² + η²:
+ *   ∫ ln r ds = [u·ln r − u] from u0 to u1 + η·θ,  θ = atan2(η·L, η² + u0·u1) (the angle the element subtends),
+ *   φ   = −(∫ ln r ds − L·ln ℓ)/(2π),
+ *   E_ξ = ln(r0/r1)/(2π),  E_η = θ/(2π).
+ * Exact at any distance (no quadrature), so near elements cost no more than far ones.
+ */
+export function lineSegmentKernel(scale: number): LineAdd {
+  const lnScale = Math.log(scale);
+  const inv2pi = 1 / (2 * Math.PI);
+  return (el, x, y, w, field, acc) => {
+    const px = x - el.x0, py = y - el.y0;
+    const xi = px * el.tx + py * el.ty;
+    const eta = py * el.tx - px * el.ty; // along n = (−t_y, t_x)
+    const L = el.length;
+    const u0 = -xi, u1 = L - xi;
+    const r0sq = u0 * u0 + eta * eta, r1sq = u1 * u1 + eta * eta;
+    const ln0 = r0sq > 0 ? 0.5 * Math.log(r0sq) : 0;
+    const ln1 = r1sq > 0 ? 0.5 * Math.log(r1sq) : 0;
+    const theta = Math.atan2(eta * L, eta * eta + u0 * u1);
+    const integral = u1 * ln1 - u0 * ln0 - L + eta * theta;
+    acc[0] -= w * inv2pi * (integral - L * lnScale);
+    if (!field) return;
+    const eXi = w * inv2pi * (ln0 - ln1);
+    const eEta = w * inv2pi * theta;
+    acc[1] += eXi * el.tx - eEta * el.ty;
+    acc[2] += eXi * el.ty + eEta * el.tx;
   };
 }
 
@@ -65,6 +98,7 @@ export function solvePlanar(scene: ScenePlanar, options: Solve2dOptions = {}): R
     {
       space: 'planar',
       kernel,
+      line: lineSegmentKernel(scale),
       mirror,
       infinityUnknown: mirror === null,
       pieces,

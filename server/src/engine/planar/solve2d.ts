@@ -21,7 +21,7 @@ import { postSolveChecks } from '../post-solve';
 import { sliceGrid as sliceDimensions } from '../evaluate';
 import { diagnostic } from '../../../../grammar/diagnostics';
 import type { Convergence, ElectrodeResult, GapResult, Outline, ProbeResult, Result, SliceResult } from '../result';
-import { addElement, assemble, FAR_RATIO, FAR_RULE, farRules, integrateCurve, type KernelAdd, type Mirror } from './bem2d';
+import { addElement, assemble, FAR_RATIO, FAR_RULE, farRules, integrateCurve, type KernelAdd, type LineAdd, type Mirror } from './bem2d';
 import { curvePoint, splitPiece, type Element2d, type Piece } from './elements';
 import { gridEvaluate, GRID_COARSE, GRID_FULL, type Grid2d } from './grid2d';
 
@@ -48,6 +48,8 @@ export interface FreeSource {
 export interface Space2d {
   space: 'axisymmetric' | 'planar';
   kernel: KernelAdd;
+  /** The kernel over a whole straight element in closed form, where it has one (planar). */
+  line: LineAdd | null;
   mirror: Mirror | null;
   /** Planar with no ground plane: potential at infinity as an unknown, total charge as an equation. */
   infinityUnknown: boolean;
@@ -141,7 +143,7 @@ function levelKey(setup: Space2d, h: number, k: number): string {
 function factorLevel(setup: Space2d, elements: Element2d[], k: number, options: Solve2dOptions, timings: Record<string, number>, tag: string): Factored | null {
   let t = performance.now();
   const n = elements.length;
-  const a = assemble(elements, setup.kernel, setup.mirror, options.isCancelled);
+  const a = assemble(elements, setup.kernel, setup.mirror, options.isCancelled, setup.line);
   if (!a) return null;
   timings[`assemble${tag}`] = performance.now() - t;
   t = performance.now();
@@ -440,13 +442,12 @@ function fieldAt(setup: Space2d, elements: Element2d[], far: Float64Array, d: Dr
   acc[1] = 0;
   acc[2] = 0;
   const mirror = setup.mirror;
-  const kernel = setup.kernel;
-  const sum = (px: number, py: number, out: Float64Array) => addSources(elements, far, d.tau, kernel, px, py, out);
-  sum(x, y, acc);
+  addSources(elements, far, d.tau, setup.kernel, setup.line, x, y, acc);
   if (mirror) {
     // Images of opposite sign: φ_img(p) = −φ(Mp), E_img(p) = −M·E(Mp).
-    const img = new Float64Array(3);
-    sum(mirror.axis === 0 ? 2 * mirror.at - x : x, mirror.axis === 1 ? 2 * mirror.at - y : y, img);
+    const img = imageAcc;
+    img[0] = img[1] = img[2] = 0;
+    addSources(elements, far, d.tau, setup.kernel, setup.line, mirror.axis === 0 ? 2 * mirror.at - x : x, mirror.axis === 1 ? 2 * mirror.at - y : y, img);
     acc[0] -= img[0];
     acc[1] += mirror.axis === 0 ? img[1] : -img[1];
     acc[2] += mirror.axis === 1 ? img[2] : -img[2];
@@ -454,11 +455,17 @@ function fieldAt(setup: Space2d, elements: Element2d[], far: Float64Array, d: Dr
   for (const f of setup.free) f.add(x, y, true, acc, false);
 }
 
-function addSources(elements: Element2d[], far: Float64Array, tau: Float64Array, kernel: KernelAdd, x: number, y: number, acc: Float64Array): void {
+const imageAcc = new Float64Array(3);
+
+function addSources(elements: Element2d[], far: Float64Array, tau: Float64Array, kernel: KernelAdd, line: LineAdd | null, x: number, y: number, acc: Float64Array): void {
   for (let j = 0; j < elements.length; j++) {
     const t = tau[j];
     if (t === 0) continue;
     const el = elements[j];
+    if (line && el.kind === 'line') {
+      line(el, x, y, t, true, acc);
+      continue;
+    }
     const ratio = Math.hypot(x - el.mx, y - el.my) / el.length;
     if (ratio > FAR_RATIO) {
       for (let q = 0; q < FAR_RULE; q++) {
@@ -468,7 +475,6 @@ function addSources(elements: Element2d[], far: Float64Array, tau: Float64Array,
     } else integrateCurve(el, 0, el.length, x, y, kernel, t, true, acc);
   }
 }
-
 
 // ---- outlines of electrodes in a slice ----
 
@@ -601,7 +607,7 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
     const [x, y] = setup.toSolver(f.at[0], f.at[1]);
     acc[0] = setup.infinityUnknown ? dFine.infinity : 0;
     for (let j = 0; j < fine.elements.length; j++) {
-      if (dFine.tau[j] !== 0) addElement(fine.elements[j], x, y, setup.kernel, setup.mirror, dFine.tau[j], false, acc);
+      if (dFine.tau[j] !== 0) addElement(fine.elements[j], x, y, setup.kernel, setup.mirror, dFine.tau[j], false, acc, setup.line);
     }
     for (const g of setup.free) g.add(x, y, false, acc, g === f);
     energy += 0.5 * f.value * acc[0];
@@ -724,7 +730,7 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
       out[3 * idx + 2] = acc[2];
     }
     const accuracy = options.level === 'coarse' ? GRID_COARSE : GRID_FULL;
-    gridEvaluate({ elements, tau, kernel: setup.kernel, mirror: setup.mirror, fold: setup.space === 'axisymmetric', logScale: setup.space === 'planar' ? setup.scale : undefined }, grid, mask, out, accuracy);
+    gridEvaluate({ elements, tau, kernel: setup.kernel, line: setup.line, mirror: setup.mirror, fold: setup.space === 'axisymmetric', logScale: setup.space === 'planar' ? setup.scale : undefined }, grid, mask, out, accuracy);
     return out;
   }
 
