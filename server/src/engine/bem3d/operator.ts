@@ -1,11 +1,14 @@
 // The 3d system as a LinearOperator for the chosen solver: a dense matrix for the dense solvers,
 // or whatever a registered method builds (e.g. a compressed or treecode operator) from the system.
-import { blockJacobi, spatialGroups } from '../linear/block-jacobi';
+import { cutRuns, spatialOrder } from '../linear/block-jacobi';
+import { twoLevel } from '../linear/two-level';
 import { denseOperator, needsDenseMatrix, type LinearOperator, type SolverKind } from '../linear/solver';
 import { assembleDense, entry, type Bem3dSystem } from './system';
 
-/** Panels per block of the block-Jacobi preconditioner of the dense iterative solver. */
+/** Panels per block of the block-Jacobi part of the dense iterative solver's preconditioner. */
 export const PRECONDITIONER_BLOCK = 64;
+/** Panels per cluster of its coarse part (linear/two-level.ts): G = n/8 coarse unknowns. */
+export const PRECONDITIONER_CLUSTER = 8;
 
 type OperatorFactory = (sys: Bem3dSystem, isCancelled?: () => boolean) => LinearOperator | null;
 const factories = new Map<string, OperatorFactory>();
@@ -24,8 +27,10 @@ export function buildOperator(sys: Bem3dSystem, kind: SolverKind, isCancelled?: 
     if (!A) return null;
     const op = denseOperator(sys.n, A);
     if (kind === 'dense-lu') return op;
-    // Iterative: precondition with the diagonal blocks of nearby panels (per electrode).
-    const precondition = blockJacobi(sys.n, A, spatialGroups(sys.points, sys.mesh.electrode, PRECONDITIONER_BLOCK));
+    // Iterative: precondition with a coarse correction over clusters of nearby panels, then the
+    // diagonal blocks of nearby panels (per electrode); the clusters nest in the blocks.
+    const order = spatialOrder(sys.points, sys.mesh.electrode);
+    const precondition = twoLevel(sys.n, A, cutRuns(order, PRECONDITIONER_BLOCK), cutRuns(order, PRECONDITIONER_CLUSTER));
     return { ...op, apply: op.apply, precondition };
   }
   // A method with no operator of its own: entries computed on the fly (O(N²) per product, no storage).

@@ -91,8 +91,14 @@ export function luFactor(n: number, a: Float64Array, isCancelled?: () => boolean
 
 /** Solves A·x = b with the factors; b is left intact. */
 export function luSolve(f: LuFactors, b: Float64Array): Float64Array {
-  const { n, lu, pivots } = f;
   const x = Float64Array.from(b);
+  luSolveInPlace(f, x);
+  return x;
+}
+
+/** Solves A·x = b with the factors, x holding b on entry and the solution on return. */
+export function luSolveInPlace(f: LuFactors, x: Float64Array): void {
+  const { n, lu, pivots } = f;
   for (let k = 0; k < n; k++) {
     const p = pivots[k];
     if (p !== k) {
@@ -113,5 +119,4 @@ export function luSolve(f: LuFactors, b: Float64Array): Float64Array {
     for (let j = i + 1; j < n; j++) s -= lu[ri + j] * x[j];
     x[i] = s / lu[ri + i];
   }
-  return x;
 }
