@@ -38,21 +38,25 @@ export function acaBlock(
   eps: number,
 ): LowRankFactors | null {
   const maxRank = Math.floor((m * n) / (m + n));
-  const us: Float64Array[] = [];
-  const vs: Float64Array[] = [];
+  // Factors in flat buffers that grow by doubling: U[l·m + a], V[l·n + b].
+  let cap = Math.min(maxRank, 16);
+  let U = new Float64Array(cap * m);
+  let V = new Float64Array(cap * n);
+  let k = 0;
   const usedRow = new Uint8Array(m);
   let norm2 = 0;
   let i = 0;
   let zeroRows = 0;
   const row = new Float64Array(n);
-  while (us.length < maxRank) {
+  const col = new Float64Array(m);
+  while (k < maxRank) {
     usedRow[i] = 1;
     src.row(order[r0 + i], order, c0, n, row);
-    for (let l = 0; l < us.length; l++) {
-      const ui = us[l][i];
+    for (let l = 0; l < k; l++) {
+      const ui = U[l * m + i];
       if (ui === 0) continue;
-      const v = vs[l];
-      for (let b = 0; b < n; b++) row[b] -= ui * v[b];
+      const o = l * n;
+      for (let b = 0; b < n; b++) row[b] -= ui * V[o + b];
     }
     let j = 0, best = -1;
     for (let b = 0; b < n; b++) {
@@ -64,42 +68,49 @@ export function acaBlock(
     }
     if (!(best > 0)) {
       // A row already reproduced exactly: try the next unused row; give up after a few.
-      if (++zeroRows > 3 && us.length > 0) break;
+      if (++zeroRows > 3 && k > 0) break;
       i = nextUnused(usedRow, i);
       if (i < 0) break;
       continue;
     }
-    const v = new Float64Array(n);
-    const inv = 1 / row[j];
-    for (let b = 0; b < n; b++) v[b] = row[b] * inv;
-    const u = new Float64Array(m);
-    src.col(order[c0 + j], order, r0, m, u);
-    for (let l = 0; l < us.length; l++) {
-      const vj = vs[l][j];
-      if (vj === 0) continue;
-      const ul = us[l];
-      for (let a = 0; a < m; a++) u[a] -= vj * ul[a];
+    if (k === cap) {
+      cap = Math.min(maxRank, 2 * cap);
+      const U2 = new Float64Array(cap * m), V2 = new Float64Array(cap * n);
+      U2.set(U);
+      V2.set(V);
+      U = U2;
+      V = V2;
     }
+    const inv = 1 / row[j];
+    const ov = k * n, ou = k * m;
+    for (let b = 0; b < n; b++) V[ov + b] = row[b] * inv;
+    src.col(order[c0 + j], order, r0, m, col);
+    for (let l = 0; l < k; l++) {
+      const vj = V[l * n + j];
+      if (vj === 0) continue;
+      const o = l * m;
+      for (let a = 0; a < m; a++) col[a] -= vj * U[o + a];
+    }
+    U.set(col, ou);
     let nu2 = 0, nv2 = 0;
-    for (let a = 0; a < m; a++) nu2 += u[a] * u[a];
-    for (let b = 0; b < n; b++) nv2 += v[b] * v[b];
+    for (let a = 0; a < m; a++) nu2 += col[a] * col[a];
+    for (let b = 0; b < n; b++) nv2 += V[ov + b] * V[ov + b];
     let cross = 0;
-    for (let l = 0; l < us.length; l++) {
+    for (let l = 0; l < k; l++) {
       let du = 0, dv = 0;
-      const ul = us[l], vl = vs[l];
-      for (let a = 0; a < m; a++) du += ul[a] * u[a];
-      for (let b = 0; b < n; b++) dv += vl[b] * v[b];
+      const pu = l * m, pv = l * n;
+      for (let a = 0; a < m; a++) du += U[pu + a] * col[a];
+      for (let b = 0; b < n; b++) dv += V[pv + b] * V[ov + b];
       cross += du * dv;
     }
     norm2 += 2 * cross + nu2 * nv2;
-    us.push(u);
-    vs.push(v);
+    k++;
     if (nu2 * nv2 <= eps * eps * norm2) break;
     // Next pivot row: the largest entry of the new column among the rows not used yet.
     let next = -1, big = -1;
     for (let a = 0; a < m; a++) {
       if (usedRow[a]) continue;
-      const x = Math.abs(u[a]);
+      const x = Math.abs(col[a]);
       if (x > big) {
         big = x;
         next = a;
@@ -108,15 +119,8 @@ export function acaBlock(
     if (next < 0) break;
     i = next;
   }
-  if (us.length >= maxRank) return null;
-  const k = us.length;
-  const U = new Float64Array(k * m);
-  const V = new Float64Array(k * n);
-  for (let l = 0; l < k; l++) {
-    U.set(us[l], l * m);
-    V.set(vs[l], l * n);
-  }
-  return { rank: k, U, V };
+  if (k >= maxRank) return null;
+  return { rank: k, U: U.subarray(0, k * m), V: V.subarray(0, k * n) };
 }
 
 function nextUnused(used: Uint8Array, from: number): number {
