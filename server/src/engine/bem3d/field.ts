@@ -48,12 +48,34 @@ export function addFreeCharges(s: FieldState3d, x: number, y: number, z: number,
   }
 }
 
-/** Surface field magnitude per panel, V/m (the larger face's on thin sheets). */
+/**
+ * Surface field magnitude per panel, V/m (the larger face's on thin sheets). The average normal
+ * field at a thin panel comes from the stored rows of the assembly (system.ts ThinRows) when there
+ * are any, else from a sum over all panels.
+ */
 export function surfaceFields(s: FieldState3d): Float64Array {
   const { mesh } = s.sys;
   const n = s.sys.n;
   const E = new Float64Array(n);
+  const done = new Uint8Array(n);
+  const stored = s.sys.thinRows;
+  if (stored) {
+    const free = new Float64Array(4);
+    const c = mesh.centroid, nrm = mesh.normal;
+    stored.panels.forEach((j, t) => {
+      const row = stored.rows, at = t * n;
+      let gn = 0;
+      for (let m = 0; m < n; m++) gn += row[at + m] * s.x[m];
+      free.fill(0);
+      addFreeCharges(s, c[3 * j], c[3 * j + 1], c[3 * j + 2], free);
+      gn += free[1] * nrm[3 * j] + free[2] * nrm[3 * j + 1] + free[3] * nrm[3 * j + 2];
+      // E = −∇φ, so |E·n| = |∇φ·n|.
+      E[j] = Math.abs(s.x[j]) / 2 + Math.abs(gn);
+      done[j] = 1;
+    });
+  }
   for (let j = 0; j < n; j++) {
+    if (done[j]) continue;
     if (!mesh.thin[j]) {
       E[j] = Math.abs(s.x[j]);
       continue;

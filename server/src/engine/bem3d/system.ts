@@ -20,6 +20,20 @@ export interface Bem3dSystem {
   /** Collocation points (the panel centroids, or those given), 3 per panel. */
   points: Float64Array;
   n: number;
+  /** Normal-field rows at thin panels, filled by assembleDense (field.ts surfaceFields uses them). */
+  thinRows?: ThinRows;
+}
+
+/**
+ * The normal gradient of the potential at thin panels' centroids, one row per panel:
+ *   rows[t·n + j] = n_t · ∇φ_j(c_t),   φ_j = (1/4π)·Σ_images sign·I_j(image(r)),
+ * so that n_t·∇φ(c_t) = Σ_j rows[t·n + j]·x_j (the principal value on panel t itself). Filled while
+ * the matrix row at the same point is computed (one kernel pass gives both), for the thin panels
+ * whose collocation point is their centroid.
+ */
+export interface ThinRows {
+  panels: Int32Array;
+  rows: Float64Array;
 }
 
 export function createSystem(mesh: Mesh, images: Image[], points?: Float64Array): Bem3dSystem {
@@ -39,22 +53,72 @@ export function entry(sys: Bem3dSystem, i: number, j: number): number {
   return sum * INV_4PI;
 }
 
-/** The dense matrix, row-major; null when cancelled (polled every few rows). */
+/**
+ * The dense matrix, row-major, A_ij = (1/4π)·Σ_images sign·I_j(image(p_i)); null when cancelled
+ * (polled every few rows). Also fills sys.thinRows (see ThinRows).
+ */
 export function assembleDense(sys: Bem3dSystem, isCancelled?: () => boolean): Float64Array | null {
   const n = sys.n;
   const A = new Float64Array(n * n);
   const P = sys.panels;
   const p = sys.points;
+  const { mesh, images } = sys;
+  const c = mesh.centroid;
+  const thin: number[] = [];
+  for (let i = 0; i < n; i++) {
+    if (mesh.thin[i] && p[3 * i] === c[3 * i] && p[3 * i + 1] === c[3 * i + 1] && p[3 * i + 2] === c[3 * i + 2]) thin.push(i);
+  }
+  const thinRows: ThinRows = { panels: Int32Array.from(thin), rows: new Float64Array(thin.length * n) };
+  const I = images.length;
+  // The images of the row's point, and per image the factors of the normal gradient through the reflection.
+  const rx = new Float64Array(I), ry = new Float64Array(I), rz = new Float64Array(I);
+  const sign = Float64Array.from(images, (im) => im.sign);
+  const gnx = new Float64Array(I), gny = new Float64Array(I), gnz = new Float64Array(I);
   const r = [0, 0, 0];
+  const g = new Float64Array(4);
+  let t = 0;
   for (let i = 0; i < n; i++) {
     if ((i & 63) === 0 && isCancelled?.()) return null;
     const row = i * n;
-    for (const im of sys.images) {
-      reflect(im, p[3 * i], p[3 * i + 1], p[3 * i + 2], r);
-      const x = r[0], y = r[1], z = r[2], s = im.sign * INV_4PI;
-      for (let j = 0; j < n; j++) A[row + j] += s * panelPotential(P, j, x, y, z);
+    for (let k = 0; k < I; k++) {
+      reflect(images[k], p[3 * i], p[3 * i + 1], p[3 * i + 2], r);
+      rx[k] = r[0];
+      ry[k] = r[1];
+      rz[k] = r[2];
+    }
+    if (t < thin.length && thin[t] === i) {
+      // A thin panel: the potential and its normal gradient in one pass (the chain rule through each
+      // reflection: ∂/∂x_c of f(flip·x + shift) = flip_c·(∂f)_c).
+      const nx = mesh.normal[3 * i], ny = mesh.normal[3 * i + 1], nz = mesh.normal[3 * i + 2];
+      for (let k = 0; k < I; k++) {
+        gnx[k] = images[k].sign * images[k].flip[0] * nx;
+        gny[k] = images[k].sign * images[k].flip[1] * ny;
+        gnz[k] = images[k].sign * images[k].flip[2] * nz;
+      }
+      const out = t * n;
+      for (let j = 0; j < n; j++) {
+        let v = 0, gn = 0;
+        for (let k = 0; k < I; k++) {
+          panelPotentialAndGradient(P, j, rx[k], ry[k], rz[k], g);
+          v += sign[k] * g[0];
+          gn += gnx[k] * g[1] + gny[k] * g[2] + gnz[k] * g[3];
+        }
+        A[row + j] = INV_4PI * v;
+        thinRows.rows[out + j] = INV_4PI * gn;
+      }
+      t++;
+    } else if (I === 1) {
+      const x = rx[0], y = ry[0], z = rz[0];
+      for (let j = 0; j < n; j++) A[row + j] = INV_4PI * panelPotential(P, j, x, y, z);
+    } else {
+      for (let j = 0; j < n; j++) {
+        let v = 0;
+        for (let k = 0; k < I; k++) v += sign[k] * panelPotential(P, j, rx[k], ry[k], rz[k]);
+        A[row + j] = INV_4PI * v;
+      }
     }
   }
+  sys.thinRows = thinRows;
   return A;
 }
 
