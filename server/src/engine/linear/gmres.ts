@@ -67,7 +67,8 @@ function gmresStepper(n: number, b: Float64Array, initial: Float64Array | null |
     return () => done;
   }
 
-  const V: Float64Array[] = Array.from({ length: m + 1 }, () => new Float64Array(n));
+  // The Krylov basis, grown as needed (most solves stop far short of the restart length).
+  const V: Float64Array[] = [new Float64Array(n)];
   const H = new Float64Array((m + 1) * m); // H[i*m + j]
   const cs = new Float64Array(m), sn = new Float64Array(m), g = new Float64Array(m + 1);
   const w = new Float64Array(n), z = new Float64Array(n), r = new Float64Array(n);
@@ -136,6 +137,7 @@ function gmresStepper(n: number, b: Float64Array, initial: Float64Array | null |
     }
     const h1 = Math.sqrt(dot(w, w));
     H[(k + 1) * m + k] = h1;
+    if (V.length <= k + 1) V.push(new Float64Array(n));
     if (h1 !== 0) {
       const vk = V[k + 1];
       for (let t = 0; t < n; t++) vk[t] = w[t] / h1;
