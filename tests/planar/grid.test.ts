@@ -12,6 +12,8 @@ const pieces: Piece[] = [
   { ...lineCurve(0.1, 0.3, 1, 0.3), electrode: 0, thin: true, gradeStart: false, gradeEnd: true },
   { ...arcCurve(0.6, 2, 0.5, -Math.PI / 2, Math.PI / 2), electrode: 1, thin: false, gradeStart: false, gradeEnd: false },
   { ...lineCurve(0.2, -1, 2.6, -1.2), electrode: 2, thin: true, gradeStart: true, gradeEnd: true },
+  // A whole small circle: one run of arc elements turning by 2π (clusters along it must stay short).
+  { ...arcCurve(2.2, 0.9, 0.25, 0, 2 * Math.PI), electrode: 3, thin: false, gradeStart: false, gradeEnd: false },
 ];
 
 const references = new Map<string, Float64Array>();

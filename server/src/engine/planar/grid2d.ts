@@ -107,6 +107,131 @@ interface FarField<T> {
 }
 
 /**
+ * Runs of elements along one curve (a whole side or arc, split into consecutive elements), cut by
+ * bisection into clusters. A cluster well away from a block acts through `order` proxy charges at
+ * Chebyshev points of its arc length s, Q_k = Σ_elements τ·∫ ℓ_k(s) ds (ℓ_k the Lagrange basis; the
+ * elements' 3-point rules integrate it exactly for order ≤ 6 and within ρ^−6 beyond): the kernel
+ * along the curve is smooth in s for a target beyond CLUSTER_SEPARATION half-lengths, so it is
+ * interpolated in s (the same barycentric formula on the source side).
+ */
+interface Clusters {
+  /** Per cluster: first and past-last element, proxy positions and arc lengths, barycentric weights, charges. */
+  first: Int32Array;
+  last: Int32Array;
+  /** Arc-length offset of each element from the start of its run, and the cluster's run start element. */
+  offset: Float64Array;
+  proxies: { x: Float64Array; y: Float64Array; s: Float64Array; w: Float64Array; q: Float64Array }[];
+  /** Child items of each cluster (clusters or elements, as item ids). */
+  children: number[][];
+  /** Whether the cluster may act through its proxies (an arc cluster must turn by at most MAX_TURN). */
+  usable: boolean[];
+  /** Top-level items: a root cluster per run, or the elements of short runs. */
+  roots: number[];
+  centreX: number[];
+  centreY: number[];
+  radius: number[];
+}
+
+/** Elements per leaf cluster; a cluster needs a target this many of its half-lengths away. */
+const CLUSTER_LEAF = 4;
+const CLUSTER_SEPARATION = 3;
+/**
+ * Most turning (radians) of an arc cluster that acts through proxies. Along an arc of radius R the
+ * kernel's singularity in s lies only about R·ln(D/R) off the real line (D the target's distance from
+ * the arc's centre), not D: a strongly curved cluster interpolates poorly in s however far the target.
+ */
+const MAX_TURN = 0.5;
+/** A near cluster longer than this fraction of a block's half-diagonal (squared) is opened at the block. */
+const OPEN = 0.25;
+
+function sameCurve(a: Element2d, b: Element2d, tol: number): boolean {
+  if (a.kind !== b.kind || a.electrode !== b.electrode) return false;
+  const end = new Float64Array(4);
+  curvePoint(a, a.length, end);
+  if (Math.abs(end[0] - b.x0) > tol || Math.abs(end[1] - b.y0) > tol) return false;
+  if (a.kind === 'line') return Math.abs(a.tx - b.tx) < 1e-12 && Math.abs(a.ty - b.ty) < 1e-12;
+  return a.dir === b.dir && Math.abs(a.cx - b.cx) <= tol && Math.abs(a.cy - b.cy) <= tol && Math.abs(a.radius - b.radius) <= tol;
+}
+
+function buildClusters(elements: Element2d[], order: number): Clusters {
+  const n = elements.length;
+  const first: number[] = [], last: number[] = [], children: number[][] = [], roots: number[] = [], usable: boolean[] = [];
+  const centreX: number[] = [], centreY: number[] = [], radius: number[] = [];
+  const proxies: Clusters['proxies'] = [];
+  const offset = new Float64Array(n);
+  const runStart = new Int32Array(n);
+  const size = elements.reduce((m, el) => Math.max(m, Math.abs(el.x0), Math.abs(el.y0)), 0) || 1;
+  const p = new Float64Array(4);
+  const make = (start: number, a: number, b: number): number => {
+    if (b - a <= CLUSTER_LEAF) {
+      const items: number[] = [];
+      for (let j = a; j < b; j++) items.push(j);
+      return b - a === 1 ? a : -1 - pushCluster(start, a, b, items);
+    }
+    const mid = (a + b) >> 1;
+    const left = make(start, a, mid);
+    const right = make(start, mid, b);
+    return -1 - pushCluster(start, a, b, [left, right].flatMap((x) => (x >= 0 ? [x] : [n + (-1 - x)])));
+  };
+  const pushCluster = (start: number, a: number, b: number, items: number[]): number => {
+    const base = elements[start];
+    const s0 = offset[a], s1 = offset[b - 1] + elements[b - 1].length;
+    curvePoint(base, 0.5 * (s0 + s1), p);
+    const c = first.length;
+    first.push(a);
+    last.push(b);
+    children.push(items);
+    usable.push(base.kind === 'line' || (s1 - s0) <= MAX_TURN * base.radius);
+    centreX.push(p[0]);
+    centreY.push(p[1]);
+    radius.push(0.5 * (s1 - s0));
+    const sx = new Float64Array(order), sy = new Float64Array(order), ss = new Float64Array(order);
+    for (let k = 0; k < order; k++) {
+      ss[k] = 0.5 * (s0 + s1) - 0.5 * (s1 - s0) * Math.cos((k * Math.PI) / (order - 1));
+      curvePoint(base, ss[k], p);
+      sx[k] = p[0];
+      sy[k] = p[1];
+    }
+    const w = Float64Array.from({ length: order }, (_, k) => (k % 2 === 0 ? 1 : -1) * (k === 0 || k === order - 1 ? 0.5 : 1));
+    proxies.push({ x: sx, y: sy, s: ss, w, q: new Float64Array(order) });
+    return c;
+  };
+  for (let a = 0; a < n; ) {
+    let b = a + 1;
+    offset[a] = 0;
+    runStart[a] = a;
+    while (b < n && sameCurve(elements[b - 1], elements[b], 1e-9 * size)) {
+      offset[b] = offset[b - 1] + elements[b - 1].length;
+      runStart[b] = a;
+      b++;
+    }
+    const root = make(a, a, b);
+    roots.push(root >= 0 ? root : n + (-1 - root));
+    a = b;
+  }
+  return { first: Int32Array.from(first), last: Int32Array.from(last), offset, proxies, children, usable, roots, centreX, centreY, radius };
+}
+
+/** Sets every cluster's proxy charges for densities tau (3-point Gauss rule per element). */
+function setCharges(c: Clusters, elements: Element2d[], tau: Float64Array): void {
+  const rule = gaussLegendre(3);
+  const l = new Float64Array(64);
+  c.proxies.forEach((px, k) => {
+    px.q.fill(0);
+    for (let j = c.first[k]; j < c.last[k]; j++) {
+      const t = tau[j];
+      if (t === 0) continue;
+      const L = elements[j].length;
+      for (let g = 0; g < 3; g++) {
+        basis(c.offset[j] + L * rule.nodes[g], px.s, px.w, l);
+        const q = t * L * rule.weights[g];
+        for (let m = 0; m < px.q.length; m++) px.q[m] += q * l[m];
+      }
+    }
+  });
+}
+
+/**
  * Adds (φ, E_u, E_v) at every cell with mask[idx] ≠ 0 into out[3·idx ..] (scene coordinates; per
  * unit ε, as the kernel). Returns the interaction counts.
  */
@@ -114,28 +239,44 @@ export function gridEvaluate(src: GridSources, grid: Grid2d, mask: Uint8Array, o
   const { elements, tau, kernel, mirror, fold } = src;
   const { nu, nv, u0, v0, du, dv } = grid;
   const counts: GridCounts = { direct: 0, gathered: 0 };
+  const n = elements.length;
+  if (n === 0) return counts;
   const rule3 = curveRules(elements, 3);
   const rule5 = curveRules(elements, 5);
-  // Units: element j (unit 2j) and its image (unit 2j + 1); their centres and radii in solver coordinates.
-  const units: number[] = [];
-  const cx = new Float64Array(2 * elements.length);
-  const cy = new Float64Array(2 * elements.length);
-  const rad = new Float64Array(2 * elements.length);
-  elements.forEach((el, j) => {
-    if (tau[j] === 0) return;
-    // The element lies within half its arc length of its midpoint.
-    cx[2 * j] = el.mx;
-    cy[2 * j] = el.my;
-    rad[2 * j] = 0.5 * el.length;
-    units.push(2 * j);
+  const clusters = buildClusters(elements, accuracy.order);
+  setCharges(clusters, elements, tau);
+  const nc = clusters.first.length;
+  // Items: id < n an element, id ≥ n cluster id − n; item = 2·id + (1 for the image in the mirror).
+  const ids = n + nc;
+  const cx = new Float64Array(2 * ids);
+  const cy = new Float64Array(2 * ids);
+  const rad = new Float64Array(2 * ids);
+  const place = (id: number, x: number, y: number, r: number) => {
+    cx[2 * id] = x;
+    cy[2 * id] = y;
+    rad[2 * id] = rad[2 * id + 1] = r;
     if (mirror) {
-      cx[2 * j + 1] = mirror.axis === 0 ? 2 * mirror.at - el.mx : el.mx;
-      cy[2 * j + 1] = mirror.axis === 1 ? 2 * mirror.at - el.my : el.my;
-      rad[2 * j + 1] = 0.5 * el.length;
-      units.push(2 * j + 1);
+      cx[2 * id + 1] = mirror.axis === 0 ? 2 * mirror.at - x : x;
+      cy[2 * id + 1] = mirror.axis === 1 ? 2 * mirror.at - y : y;
     }
-  });
-  if (units.length === 0) return counts;
+  };
+  // An element lies within half its arc length of its midpoint; a cluster within half its length of its centre.
+  elements.forEach((el, j) => place(j, el.mx, el.my, 0.5 * el.length));
+  for (let k = 0; k < nc; k++) place(n + k, clusters.centreX[k], clusters.centreY[k], clusters.radius[k]);
+  const items: number[] = [];
+  for (const id of clusters.roots) {
+    items.push(2 * id);
+    if (mirror) items.push(2 * id + 1);
+  }
+  /** Every element item under `item` (the item itself for an element), into outList. */
+  const expand = (item: number, outList: number[]) => {
+    const id = item >> 1;
+    if (id < n) {
+      if (tau[id] !== 0) outList.push(item);
+      return;
+    }
+    for (const child of clusters.children[id - n]) expand(2 * child + (item & 1), outList);
+  };
 
   // Cells to evaluate, as a summed-area table (the count in any block in O(1)).
   const table = new Int32Array((nu + 1) * (nv + 1));
@@ -151,22 +292,26 @@ export function gridEvaluate(src: GridSources, grid: Grid2d, mask: Uint8Array, o
 
   const acc = new Float64Array(3);
   const img = new Float64Array(3);
-  /** Adds unit's (φ, E_x, E_y) at solver point (x, y) into acc (images with their signs). */
-  const addUnit = (unit: number, x: number, y: number) => {
-    const j = unit >> 1;
-    const el = elements[j];
-    if (unit & 1) {
+  const line = src.line ?? null;
+  /** Adds item's (φ, E_x, E_y) at solver point (x, y) into acc (images with their signs). */
+  const addItem = (item: number, x: number, y: number) => {
+    if (item & 1) {
       const m = mirror!;
       img[0] = img[1] = img[2] = 0;
-      addElementAt(el, j, m.axis === 0 ? 2 * m.at - x : x, m.axis === 1 ? 2 * m.at - y : y, img);
+      addSource(item >> 1, m.axis === 0 ? 2 * m.at - x : x, m.axis === 1 ? 2 * m.at - y : y, img);
       acc[0] -= img[0];
       acc[1] += m.axis === 0 ? img[1] : -img[1];
       acc[2] += m.axis === 1 ? img[2] : -img[2];
-    } else addElementAt(el, j, x, y, acc);
+    } else addSource(item >> 1, x, y, acc);
   };
-  const line = src.line ?? null;
-  const addElementAt = (el: Element2d, j: number, x: number, y: number, into: Float64Array) => {
-    const t = tau[j];
+  const addSource = (id: number, x: number, y: number, into: Float64Array) => {
+    if (id >= n) {
+      const px = clusters.proxies[id - n];
+      for (let k = 0; k < px.q.length; k++) kernel(px.x[k], px.y[k], x, y, px.q[k], true, into);
+      return;
+    }
+    const el = elements[id];
+    const t = tau[id];
     if (line && el.kind === 'line') {
       line(el, x, y, t, true, into);
       return;
@@ -176,47 +321,50 @@ export function gridEvaluate(src: GridSources, grid: Grid2d, mask: Uint8Array, o
     const d2 = dx * dx + dy * dy;
     const l2 = el.length * el.length;
     if (d2 > NEAR3 * l2) {
-      const o = j * 9;
+      const o = id * 9;
       kernel(rule3[o], rule3[o + 1], x, y, t * rule3[o + 2], true, into);
       kernel(rule3[o + 3], rule3[o + 4], x, y, t * rule3[o + 5], true, into);
       kernel(rule3[o + 6], rule3[o + 7], x, y, t * rule3[o + 8], true, into);
     } else if (d2 > NEAR5 * l2) {
-      const o = j * 15;
+      const o = id * 15;
       for (let q = 0; q < 15; q += 3) kernel(rule5[o + q], rule5[o + q + 1], x, y, t * rule5[o + q + 2], true, into);
     } else integrateCurve(el, 0, el.length, x, y, kernel, t, true, into);
   };
-  /** Sum of units list[from .. to) at scene point (u, v), scene components, into acc. */
-  const sumAt = (list: number[], from: number, to: number, u: number, v: number) => {
+  /** Sum of items list[0 .. count) at scene point (u, v), scene components, into acc. */
+  const sumAt = (list: number[], count: number, u: number, v: number) => {
     acc[0] = acc[1] = acc[2] = 0;
     const x = fold ? Math.abs(u) : u;
-    for (let k = from; k < to; k++) addUnit(list[k], x, v);
+    for (let k = 0; k < count; k++) addItem(list[k], x, v);
     if (fold && u < 0) acc[1] = -acc[1];
   };
 
   const farField: FarField<Nodes | Expansion> =
     src.logScale !== undefined
-      ? (expansionField(accuracy.terms, src.logScale, elements, tau, rule3, rule5, cx, cy, mirror) as FarField<Nodes | Expansion>)
+      ? (expansionField(accuracy.terms, src.logScale, elements, tau, rule3, rule5, clusters, cx, cy, mirror) as FarField<Nodes | Expansion>)
       : (interpolationField(accuracy.order, sumAt, acc) as FarField<Nodes | Expansion>);
   const sep2 = accuracy.separation * accuracy.separation;
+  const clusterSep2 = CLUSTER_SEPARATION * CLUSTER_SEPARATION;
 
   /**
-   * Block of cells [i0, i1) × [j0, j1). `parent`: what was gathered above, or null. The units still
+   * Block of cells [i0, i1) × [j0, j1). `parent`: what was gathered above, or null. The items still
    * to place are list[0 .. count).
    */
-  const visit = (i0: number, i1: number, j0: number, j1: number, parent: Nodes | Expansion | null, list: number[], count: number): void => {
+  const visit = (i0: number, i1: number, j0: number, j1: number, parent: Nodes | Expansion | null, list: number[]): void => {
     if (cellsIn(i0, i1, j0, j1) === 0) return;
     const ua = u0 + (i0 + 0.5) * du, ub = u0 + (i1 - 0.5) * du;
     const va = v0 + (j0 + 0.5) * dv, vb = v0 + (j1 - 0.5) * dv;
     if ((i1 - i0) * (j1 - j0) <= LEAF_CELLS) {
-      // Leaf: what was gathered above plus every remaining unit, cell by cell.
+      // Leaf: what was gathered above plus every remaining element, cell by cell.
+      const units: number[] = [];
+      for (const item of list) expand(item, units);
       for (let j = j0; j < j1; j++) {
         const v = v0 + (j + 0.5) * dv;
         for (let i = i0; i < i1; i++) {
           const idx = j * nu + i;
           if (!mask[idx]) continue;
           const u = u0 + (i + 0.5) * du;
-          sumAt(list, 0, count, u, v);
-          counts.direct += count;
+          sumAt(units, units.length, u, v);
+          counts.direct += units.length;
           if (parent) farField.addAt(parent, u, v, acc);
           out[3 * idx] += acc[0];
           out[3 * idx + 1] += acc[1];
@@ -225,7 +373,8 @@ export function gridEvaluate(src: GridSources, grid: Grid2d, mask: Uint8Array, o
       }
       return;
     }
-    // Separate the units: far ones are gathered here, near ones go on to the children.
+    // Separate the items: far ones are gathered here, near ones go on to the children (a near
+    // cluster larger than the block is opened here first).
     const hu = 0.5 * (ub - ua), hv = 0.5 * (vb - va);
     const halfDiag2 = hu * hu + hv * hv;
     // The block as the solver sees it (folded onto r ≥ 0 in axisymmetric).
@@ -239,15 +388,25 @@ export function gridEvaluate(src: GridSources, grid: Grid2d, mask: Uint8Array, o
     }
     const near: number[] = [];
     const far: number[] = [];
-    for (let k = 0; k < count; k++) {
-      const unit = list[k];
-      const ex = Math.max(ra - cx[unit], 0, cx[unit] - rb);
-      const ey = Math.max(va - cy[unit], 0, cy[unit] - vb);
+    const stack = list.slice();
+    while (stack.length > 0) {
+      const item = stack.pop()!;
+      const id = item >> 1;
+      if (id < n && tau[id] === 0) continue;
+      const ex = Math.max(ra - cx[item], 0, cx[item] - rb);
+      const ey = Math.max(va - cy[item], 0, cy[item] - vb);
       const d2 = ex * ex + ey * ey;
-      const d = Math.sqrt(d2) - rad[unit];
+      const r = rad[item];
+      const d = Math.sqrt(d2) - r;
+      const separated = d > 0 && d * d >= sep2 * halfDiag2;
+      if (id >= n) {
+        const usable = clusters.usable[id - n];
+        if (usable && separated && d * d >= clusterSep2 * r * r) far.push(item);
+        else if (!usable || r * r > OPEN * halfDiag2) for (const child of clusters.children[id - n]) stack.push(2 * child + (item & 1));
+        else near.push(item);
+      } else if (separated && d2 > NEAR5 * 4 * r * r) far.push(item);
       // Separated, and (for the expansion's fixed rules) beyond 1.5 element lengths of every cell.
-      if (d > 0 && d * d >= sep2 * halfDiag2 && d2 > NEAR5 * 4 * rad[unit] * rad[unit]) far.push(unit);
-      else near.push(unit);
+      else near.push(item);
     }
     let here = parent;
     if (far.length > 0) {
@@ -259,21 +418,21 @@ export function gridEvaluate(src: GridSources, grid: Grid2d, mask: Uint8Array, o
     // Bisect the longer side.
     if (i1 - i0 > 1 && (ub - ua >= vb - va || j1 - j0 === 1)) {
       const mid = (i0 + i1) >> 1;
-      visit(i0, mid, j0, j1, here, near, near.length);
-      visit(mid, i1, j0, j1, here, near, near.length);
+      visit(i0, mid, j0, j1, here, near);
+      visit(mid, i1, j0, j1, here, near);
     } else {
       const mid = (j0 + j1) >> 1;
-      visit(i0, i1, j0, mid, here, near, near.length);
-      visit(i0, i1, mid, j1, here, near, near.length);
+      visit(i0, i1, j0, mid, here, near);
+      visit(i0, i1, mid, j1, here, near);
     }
   };
-  visit(0, nu, 0, nv, null, units, units.length);
+  visit(0, nu, 0, nv, null, items);
   return counts;
 }
 
 // ---- interpolation points (any kernel) ----
 
-function interpolationField(p: number, sumAt: (list: number[], from: number, to: number, u: number, v: number) => void, acc: Float64Array): FarField<Nodes> {
+function interpolationField(p: number, sumAt: (list: number[], count: number, u: number, v: number) => void, acc: Float64Array): FarField<Nodes> {
   return {
     make: (ua, ub, cellsU, va, vb, cellsV) => makeNodes(ua, ub, cellsU, va, vb, cellsV, p),
     carry: carryDown,
@@ -281,7 +440,7 @@ function interpolationField(p: number, sumAt: (list: number[], from: number, to:
       const { pu, pv, nu, nv, values } = t;
       for (let a = 0; a < pu; a++) {
         for (let b = 0; b < pv; b++) {
-          sumAt(list, 0, count, nu[a], nv[b]);
+          sumAt(list, count, nu[a], nv[b]);
           const o = 3 * (a * pv + b);
           values[o] += acc[0];
           values[o + 1] += acc[1];
@@ -314,7 +473,7 @@ interface Expansion {
   im: Float64Array;
 }
 
-function expansionField(terms: number, scale: number, elements: Element2d[], tau: Float64Array, rule3: Float64Array, rule5: Float64Array, cx: Float64Array, cy: Float64Array, mirror: Mirror | null): FarField<Expansion> {
+function expansionField(terms: number, scale: number, elements: Element2d[], tau: Float64Array, rule3: Float64Array, rule5: Float64Array, clusters: Clusters, cx: Float64Array, cy: Float64Array, mirror: Mirror | null): FarField<Expansion> {
   const inv2pi = 1 / (2 * Math.PI);
   const addSource = (t: Expansion, xs: number, ys: number, q: number) => {
     const ax = xs - t.zx, ay = ys - t.zy;
@@ -350,11 +509,23 @@ function expansionField(terms: number, scale: number, elements: Element2d[], tau
       }
     },
     gather(t, list, count) {
-      for (let n = 0; n < count; n++) {
-        const unit = list[n];
+      const n = elements.length;
+      for (let i = 0; i < count; i++) {
+        const unit = list[i];
         const j = unit >> 1;
         const image = (unit & 1) === 1;
-        const q = image ? -tau[j] : tau[j];
+        const reflect = (x: number, y: number, q: number) => {
+          if (image) {
+            if (mirror!.axis === 0) x = 2 * mirror!.at - x;
+            else y = 2 * mirror!.at - y;
+          }
+          addSource(t, x, y, image ? -q : q);
+        };
+        if (j >= n) {
+          const px = clusters.proxies[j - n];
+          for (let k = 0; k < px.q.length; k++) reflect(px.x[k], px.y[k], px.q[k]);
+          continue;
+        }
         // The 3-point rule beyond 4 element lengths of every cell, else the 5-point one (see NEAR3).
         const gap = Math.max(0, Math.hypot(cx[unit] - t.zx, cy[unit] - t.zy) - t.reach);
         const length = elements[j].length;
@@ -363,12 +534,7 @@ function expansionField(terms: number, scale: number, elements: Element2d[], tau
         const points = three ? 3 : 5;
         for (let m = 0; m < points; m++) {
           const b = (j * points + m) * 3;
-          let xs = rule[b], ys = rule[b + 1];
-          if (image) {
-            if (mirror!.axis === 0) xs = 2 * mirror!.at - xs;
-            else ys = 2 * mirror!.at - ys;
-          }
-          addSource(t, xs, ys, q * rule[b + 2]);
+          reflect(rule[b], rule[b + 1], tau[j] * rule[b + 2]);
         }
       }
     },
