@@ -13,27 +13,28 @@ import { storedProgress, withGridBuilding } from '../../server/src/engine/superp
 
 // A slice of 150 × 150 cells: over the coarse picture's 2e5 point-panel pairs, so it goes through
 // the treecode (one solution at a time, so a build costs K + 1 evaluations and is done in chunks).
-const sceneText = (hv: string) => `
+const sceneText = (hv: string, shield = '-2 kV') => `
 scene "Build check"
 space 3d
 medium air
 mesh coarse
 ground plane at z = 0
 electrode hv sphere center (0, 0, 60) mm radius 20 mm potential ${hv}
-electrode shield plate center (60, 0, 60) mm size (40, 40) mm normal x potential -2 kV
+electrode shield plate center (60, 0, 60) mm size (40, 40) mm normal x potential ${shield}
 electrode pickup sphere center (-60, 0, 60) mm radius 10 mm floating
+charge dust point at (0, 0, 25) mm value 2 nC
 slice xz at y = 0 from (-100, 1) mm to (100, 110) mm cells 150
 probe path line from (-100, 5, 30) mm to (100, 5, 30) mm samples 9
 `;
 
-function scene(hv: string): Scene3d {
-  const a = analyzeText(sceneText(hv));
+function scene(hv: string, shield?: string): Scene3d {
+  const a = analyzeText(sceneText(hv, shield));
   expect(a.diagnostics.filter((d) => d.severity === 'error')).toEqual([]);
   return a.scene as Scene3d;
 }
 
-const solve = (hv: string, cache: Cache3d = createCache3d(), isCancelled?: () => boolean, superpose?: boolean) =>
-  solve3d(scene(hv), { maxPanels: 20000, maxGridCells: 250000, level: 'coarse', convergence: false, cache, isCancelled, superpose });
+const solve = (hv: string, cache: Cache3d = createCache3d(), isCancelled?: () => boolean, superpose?: boolean, shield?: string) =>
+  solve3d(scene(hv, shield), { maxPanels: 20000, maxGridCells: 250000, level: 'coarse', convergence: false, cache, isCancelled, superpose });
 
 function level(cache: Cache3d) {
   expect(cache.levels.size).toBe(1);
@@ -76,6 +77,22 @@ describe('building the stored grids of drive-only edits', () => {
     // the slice's 3 unit grids by the treecode would cost 3 evaluations: not built.
     expect(progress.total).toBeGreaterThan(3 * 150 * 70);
     expect(progress.done).toBeLessThan(progress.total / 10);
+  });
+
+  it("'stored-only': a repeated edit of one drive (the floating electrode following) reuses the grid of its change", () => {
+    const cache = createCache3d();
+    const live = (hv: string, shield?: string) => withGridBuilding('stored-only', () => solve(hv, cache, undefined, undefined, shield))!;
+    live('10 kV');
+    // The first edit of hv: one grid along its change (hv and the floating pickup move together).
+    expectSame(live('12 kV'), solve('12 kV')!);
+    expect(storedProgress(level(cache)).directions).toBe(1);
+    // Further edits of hv go along the same direction: no new grid, and still the fresh solve's values.
+    expectSame(live('15 kV'), solve('15 kV')!);
+    expectSame(live('-3 kV'), solve('-3 kV')!);
+    expect(storedProgress(level(cache)).directions).toBe(1);
+    // An edit of the shield is a new direction.
+    expectSame(live('-3 kV', '4 kV'), solve('-3 kV', undefined, undefined, undefined, '4 kV')!);
+    expect(storedProgress(level(cache)).directions).toBe(2);
   });
 
   it('a build cut short keeps its values; the next build goes on from there; stored-only then sums them', () => {

@@ -18,8 +18,10 @@ class RecordingSolver implements Solver {
   solve(uri: string, request: SolveRequest, callbacks: SolveCallbacks) {
     this.jobs.push({ uri, request, callbacks });
   }
-  cancel(uri: string) {
+  idleStopped: string[] = [];
+  cancel(uri: string, idleToo?: boolean) {
     this.cancelled.push(uri);
+    if (idleToo) this.idleStopped.push(uri);
   }
   dispose() {}
 }
@@ -96,21 +98,36 @@ describe('server core', () => {
     expect(events.filter((e) => e.kind === 'voltscape/solveStatus').map((e) => e.params.state)).toEqual(['queued', 'solving', 'solving', 'done']);
   });
 
-  it('skips the coarse pass when only drives changed since the last full result', () => {
+  it('asks a 3d drive-only edit for both levels with the same geometry (the worker skips the coarse one once warm); a 2d one for the full level only', () => {
     const { host } = recordingHost();
     const solver = new RecordingSolver();
     const core = new ServerCore(host, solver);
+    const finish = (job: (typeof solver.jobs)[number]) => {
+      job.callbacks.onResult('coarse', result, 5);
+      job.callbacks.onResult('full', result, 5);
+      job.callbacks.onDone('done');
+    };
     core.update(uri, scene(1), 1);
     vi.advanceTimersByTime(defaultSettings.solveDelay);
-    solver.jobs[0].callbacks.onResult('coarse', result, 5);
-    solver.jobs[0].callbacks.onResult('full', result, 5);
-    solver.jobs[0].callbacks.onDone('done');
+    finish(solver.jobs[0]);
     core.update(uri, scene(2), 2);
     vi.advanceTimersByTime(defaultSettings.solveDelay);
-    expect(solver.jobs[1].request.levels).toEqual(['full']);
+    expect(solver.jobs[1].request.levels).toEqual(['coarse', 'full']);
+    expect(solver.jobs[1].request.geometry).toBe(solver.jobs[0].request.geometry);
+    finish(solver.jobs[1]);
     core.update(uri, scene(2).replace('radius 10 mm', 'radius 11 mm'), 3);
     vi.advanceTimersByTime(defaultSettings.solveDelay);
     expect(solver.jobs[2].request.levels).toEqual(['coarse', 'full']);
+    expect(solver.jobs[2].request.geometry).not.toBe(solver.jobs[0].request.geometry);
+
+    const planar = (kV: number) => `space planar\nmesh coarse\nelectrode w circle center (0, 0) mm radius 10 mm potential ${kV} kV\n`;
+    const other = 'file:///p.vscape';
+    core.update(other, planar(1), 1);
+    vi.advanceTimersByTime(defaultSettings.solveDelay);
+    finish(solver.jobs[3]);
+    core.update(other, planar(2), 2);
+    vi.advanceTimersByTime(defaultSettings.solveDelay);
+    expect(solver.jobs[4].request.levels).toEqual(['full']);
   });
 
   it('does not solve a scene with errors; re-sends the last picture once, marked stale', () => {
@@ -168,6 +185,8 @@ describe('server core', () => {
     core.close(uri);
     vi.advanceTimersByTime(10 * defaultSettings.solveDelay);
     expect(solver.jobs).toHaveLength(0);
+    // The worker's idle work for it stops too (a keystroke leaves it running through the debounce).
+    expect(solver.idleStopped).toEqual([uri]);
     expect(events.at(-1)).toEqual({ kind: 'diagnostics', params: { uri, version: 0, diagnostics: [] } });
     expect(core.get(uri)).toBeUndefined();
   });

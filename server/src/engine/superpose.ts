@@ -15,26 +15,29 @@
 // each panel's kernel by every solution at once). The build is resumable: it goes point chunk by
 // point chunk, and what was computed before a cancellation is kept, so a later build goes on from
 // there. When it runs is the caller's choice (withGridBuilding): at the first reuse of a level with
-// new drives (the default), or only when asked, e.g. by the language server while it is idle, with
-// drive edits in between taking what is complete and evaluating the rest afresh (one evaluation).
+// new drives (the default), or only when asked, e.g. by the language server while it is idle. Until
+// then a drive edit costs at most one evaluation: the last picture's values plus the grid of the
+// change in drives, which is kept, so that a repeated edit of the same drive costs none.
 import { insideElectrode } from '../../../grammar/geometry';
 import type { Diagnostic, Scene3d } from '../../../grammar/scene';
-import { addFreeCharges, potentialAndField, surfaceFields, type FieldState3d } from './bem3d/field';
+import { addFreeCharges, potentialAndField, type FieldState3d } from './bem3d/field';
 import type { FreeSolution, Level3d } from './bem3d/level';
 import { GRID_FAR_RATIO, INV_4PI, type EvalMode } from './bem3d/system';
 import { reflect, type Image } from './bem3d/images';
 import { FAST_EVAL_MIN_PANELS } from './fast/bem3d';
 import { panelPotentialAndGradient } from './kernels/triangle';
-import { behindGround, evaluateProbes, FULL_GRID, probePoints, sliceLayout, type GridEvaluator, type SliceLayout } from './evaluate';
+import { behindGround, FULL_GRID, probePoints, sliceLayout, type GridEvaluator, type SliceLayout } from './evaluate';
 import { FieldEvaluator } from './fast/field-evaluator';
 import type { ProbeResult, SliceResult } from './result';
 
 /**
  * When missing stored values are built:
  * - 'build' (the default): as soon as a use needs them;
- * - 'stored-only': a use takes the stored values that are complete, finishes those that need at most
- *   one more evaluation's worth of work (the same cost as evaluating afresh), and evaluates the rest
- *   afresh from the combined densities (identical values), leaving their build to a later 'build' run.
+ * - 'stored-only': a use sums the stored grids that are complete and finishes those that need at
+ *   most one more evaluation's worth of work (the same cost as evaluating afresh); otherwise it
+ *   starts from the values of the last use and adds the grid of the drive change (see
+ *   Stored.directions: one evaluation for a new kind of change, none for a repeat), or evaluates
+ *   afresh. The unit grids are left to a later 'build' run (the language server's idle warm-up).
  */
 export type GridBuilding = 'build' | 'stored-only';
 
@@ -52,21 +55,31 @@ export function withGridBuilding<T>(mode: GridBuilding, run: () => T): T {
 }
 
 /**
- * Stored values of one set of points: [φ, Ex, Ey, Ez] per point, one array per unit solution (of
- * which the first filled[k] points are computed so far) and one for the free charges' solution.
+ * Stored values of one set of points: [φ, Ex, Ey, Ez] per point, one array per unit solution and one
+ * for the free charges' solution `of`; of each, the first filled points are computed so far.
  */
+interface Solution {
+  values: Float64Array;
+  filled: number;
+}
+
 interface Stored {
   pts: Float64Array;
-  units: Float64Array[];
-  filled: number[];
-  free: { of: FreeSolution; values: Float64Array } | null;
+  units: Solution[];
+  free: (Solution & { of: FreeSolution }) | null;
+  /** The values of the last use (not yet shifted off free charges), with what they were summed for. */
+  last: { potentials: number[]; free: FreeSolution | null; permittivity: number; values: Float64Array } | null;
+  /**
+   * Grids of drive changes met while the unit grids were incomplete: values of the densities
+   * Σ_k d_k·unit_k for a unit vector d of potential changes. A later change along d (an edit of the
+   * same drive, floating electrodes following it) is then last + α·grid, with no evaluation.
+   */
+  directions: { d: number[]; values: Float64Array }[];
 }
 
 interface SliceStored extends Stored {
   /** The outside cells the values belong to; a different set (masks changed) starts afresh. */
   outside: Int32Array;
-  /** Cells (positions in outside) whose centre falls on a free charge: values a quarter cell off, per solution, for `of`. */
-  shifted: { of: FreeSolution | null; cells: { m: number; units: number[][]; free: number[] }[] };
 }
 
 interface LevelStore {
@@ -86,8 +99,11 @@ const stores = new WeakMap<Level3d, LevelStore>();
 /** Most stored values (8 bytes each) for one slice: 2e7, 160 MB; larger grids are evaluated afresh. */
 export const MAX_STORED_VALUES = 2e7;
 
-/** Points per step of a treecode build (threads split batches from 2048 points), and of a direct one. */
-const TREE_CHUNK = 4096;
+/**
+ * Points per step of a treecode build and of a direct one. The treecode splits batches from 2048
+ * points over threads; builds stay below that, on one thread, since they mostly run in the background.
+ */
+const TREE_CHUNK = 1024;
 const DIRECT_CHUNK = 256;
 
 function storeOf(level: Level3d): LevelStore {
@@ -102,27 +118,29 @@ function storeOf(level: Level3d): LevelStore {
 /**
  * Whether this use of a level should go through stored values: true once the level is reused with
  * drives or free charges other than at its previous use (a live drive edit), or when values are
- * already stored. Call once per use of a level, with everything that the result depends on besides
- * the geometry.
+ * already stored; in 'stored-only' mode always, so that the first use leaves its values for the
+ * next drive edit to start from (it costs what a fresh evaluation does). Call once per use of a
+ * level, with everything that the result depends on besides the geometry.
  */
 export function useSuperposition(level: Level3d, signature: string): boolean {
   const s = storeOf(level);
   const changed = s.signature !== null && s.signature !== signature;
   s.signature = signature;
-  return changed || s.slices.size > 0 || s.probes.size > 0 || s.thin !== null;
+  return building === 'stored-only' || changed || s.slices.size > 0 || s.probes.size > 0 || s.thin !== null;
 }
 
-/** How many points of each kind of stored values are computed, out of how many (for tests and the benchmark). */
-export function storedProgress(level: Level3d): { done: number; total: number } {
+/** Points computed of the stored unit grids, out of how many, and how many drive-change grids are kept (for tests and the benchmark). */
+export function storedProgress(level: Level3d): { done: number; total: number; directions: number } {
   const s = stores.get(level);
-  let done = 0, total = 0;
-  if (!s) return { done, total };
+  let done = 0, total = 0, directions = 0;
+  if (!s) return { done, total, directions };
   for (const st of [...s.slices.values(), ...s.probes.values(), ...(s.thin ? [s.thin] : [])]) {
     const m = st.pts.length / 3;
     total += m * st.units.length;
-    done += st.filled.reduce((a, b) => a + b, 0);
+    done += st.units.reduce((a, u) => a + u.filled, 0);
+    directions += st.directions.length;
   }
-  return { done, total };
+  return { done, total, directions };
 }
 
 function unitState(level: Level3d, x: Float64Array, images: Image[], charges: Scene3d['charges']): FieldState3d {
@@ -255,21 +273,32 @@ function valuesAt(state: FieldState3d, pts: Float64Array, ev: Evaluator): Float6
   return out;
 }
 
+function solution(m: number): Solution {
+  return { values: new Float64Array(4 * m), filled: 0 };
+}
+
 function newStored(pts: Float64Array, level: Level3d): Stored {
-  return { pts, units: level.unit.map(() => new Float64Array((4 * pts.length) / 3)), filled: level.unit.map(() => 0), free: null };
+  return { pts, units: level.unit.map(() => solution(pts.length / 3)), free: null, last: null, directions: [] };
+}
+
+/** The solutions s must hold for the level: the unit ones, and the free charges' one if any (started afresh when they changed). */
+function solutions(s: Stored, level: Level3d): Solution[] {
+  const free = level.free;
+  if (!free) s.free = null;
+  else if (s.free?.of !== free) s.free = { ...solution(s.pts.length / 3), of: free };
+  return s.free ? [...s.units, s.free] : s.units;
 }
 
 function isComplete(s: Stored, level: Level3d): boolean {
   const m = s.pts.length / 3;
-  return s.filled.every((f) => f === m) && (s.free?.of ?? null) === level.free;
+  return solutions(s, level).every((u) => u.filled === m);
 }
 
 /** Work left to complete s, in evaluations of one solution at one point (evaluating afresh costs m). */
 function workLeft(s: Stored, level: Level3d, ev: Evaluator): number {
   const m = s.pts.length / 3;
-  const left = s.filled.map((f) => m - f);
-  const units = onePass(level, ev) ? Math.max(0, ...left) : left.reduce((a, b) => a + b, 0);
-  return units + (level.free && s.free?.of !== level.free ? m : 0);
+  const left = solutions(s, level).map((u) => m - u.filled);
+  return onePass(level, ev) ? Math.max(0, ...left) : left.reduce((a, b) => a + b, 0);
 }
 
 /** Whether a use should complete s now (rather than evaluate afresh): always when building, else when that costs no more than one evaluation. */
@@ -280,41 +309,38 @@ function shouldComplete(s: Stored, level: Level3d, ev: Evaluator): boolean {
 /** Computes what s lacks, chunk by chunk; false when cancelled (what was computed is kept). */
 function complete(s: Stored, level: Level3d, images: Image[], charges: Scene3d['charges'], ev: Evaluator, isCancelled?: () => boolean): boolean {
   const m = s.pts.length / 3;
-  const K = level.unit.length;
-  const units = level.unit.map((u) => unitState(level, u, images, []));
+  const all = solutions(s, level);
+  const states = level.unit.map((u) => unitState(level, u, images, []));
+  if (s.free) states.push(unitState(level, s.free.of.x, images, charges));
   if (onePass(level, ev)) {
-    for (let a = Math.min(m, ...s.filled); a < m; a += DIRECT_CHUNK) {
+    // Every solution that lacks a chunk gets it in the same pass.
+    for (let a = Math.min(...all.map((u) => u.filled)); a < m; a += DIRECT_CHUNK) {
       if (isCancelled?.()) return false;
       const b = Math.min(m, a + DIRECT_CHUNK);
-      const outs = direct(units, s.pts.subarray(3 * a, 3 * b), (ev as { mode: EvalMode }).mode);
-      for (let k = 0; k < K; k++) {
-        s.units[k].set(outs[k], 4 * a);
-        s.filled[k] = Math.max(s.filled[k], b);
-      }
+      const which = all.map((u, v) => (u.filled < b ? v : -1)).filter((v) => v >= 0);
+      const outs = direct(which.map((v) => states[v]), s.pts.subarray(3 * a, 3 * b), (ev as { mode: EvalMode }).mode);
+      which.forEach((v, i) => {
+        all[v].values.set(outs[i], 4 * a);
+        all[v].filled = b;
+      });
     }
-  } else {
-    const chunk = ev.tree ? TREE_CHUNK : DIRECT_CHUNK;
-    for (let k = 0; k < K; k++) {
-      while (s.filled[k] < m) {
-        if (isCancelled?.()) return false;
-        const a = s.filled[k];
-        const b = Math.min(m, a + chunk);
-        s.units[k].set(valuesAt(units[k], s.pts.subarray(3 * a, 3 * b), ev), 4 * a);
-        s.filled[k] = b;
-      }
-    }
+    return true;
   }
-  const free = level.free;
-  if (!free) s.free = null;
-  else if (s.free?.of !== free) {
-    if (isCancelled?.()) return false;
-    s.free = { of: free, values: valuesAt(unitState(level, free.x, images, charges), s.pts, ev) };
+  const chunk = ev.tree ? TREE_CHUNK : DIRECT_CHUNK;
+  for (let v = 0; v < all.length; v++) {
+    const u = all[v];
+    while (u.filled < m) {
+      if (isCancelled?.()) return false;
+      const b = Math.min(m, u.filled + chunk);
+      u.values.set(valuesAt(states[v], s.pts.subarray(3 * u.filled, 3 * b), ev), 4 * u.filled);
+      u.filled = b;
+    }
   }
   return true;
 }
 
-/** Σ_k V_k·units_k[i] + free[i]/εr into f[0..3]. */
-function combine(units: readonly (Float64Array | number[])[], free: Float64Array | number[] | null, at: number, potentials: readonly number[], permittivity: number, f: number[]): void {
+/** Σ_k V_k·units_k[at..] + free[at..]/εr into f[0..3]. */
+function combine(units: readonly ArrayLike<number>[], free: ArrayLike<number> | null, at: number, potentials: readonly number[], permittivity: number, f: number[]): void {
   f[0] = f[1] = f[2] = f[3] = 0;
   units.forEach((u, k) => {
     const v = potentials[k];
@@ -327,6 +353,75 @@ function combine(units: readonly (Float64Array | number[])[], free: Float64Array
 /** Keeps at most `most` entries, dropping the oldest. */
 function trim<V>(map: Map<string, V>, most: number): void {
   while (map.size > most) map.delete(map.keys().next().value as string);
+}
+
+/**
+ * The combined values [φ, Ex, Ey, Ez] of s's points for these drives: summed from complete stored
+ * grids, completed first when due (building, or no dearer than one evaluation), else from the last
+ * use's values plus the grids of the drive change (one evaluation at most, for a change along a new
+ * direction), else evaluated afresh. Null when cancelled.
+ */
+function valuesFor(
+  s: Stored,
+  level: Level3d,
+  images: Image[],
+  scene: Scene3d,
+  potentials: readonly number[],
+  ev: Evaluator,
+  fresh: () => FieldState3d,
+  isCancelled?: () => boolean,
+): Float64Array | null {
+  const eps = scene.medium.permittivity;
+  let values: Float64Array | null;
+  if (isComplete(s, level) || shouldComplete(s, level, ev)) {
+    if (!complete(s, level, images, scene.charges, ev, isCancelled)) return null;
+    values = new Float64Array(s.pts.length / 3 * 4);
+    potentials.forEach((v, k) => v !== 0 && addScaled(values!, s.units[k].values, v));
+    if (s.free) addScaled(values, s.free.values, 1 / eps);
+  } else {
+    if (isCancelled?.()) return null;
+    values = fromLast(s, level, images, potentials, eps, ev) ?? valuesAt(fresh(), s.pts, ev);
+  }
+  s.last = { potentials: [...potentials], free: level.free, permittivity: eps, values };
+  return values;
+}
+
+/** out += a·v. */
+function addScaled(out: Float64Array, v: Float64Array, a: number): void {
+  for (let i = 0; i < out.length; i++) out[i] += a * v[i];
+}
+
+/** The last use's values moved to these drives (see Stored.directions), or null when the free charges or the medium changed since. */
+function fromLast(s: Stored, level: Level3d, images: Image[], potentials: readonly number[], permittivity: number, ev: Evaluator): Float64Array | null {
+  const last = s.last;
+  if (!last || last.free !== level.free || last.permittivity !== permittivity) return null;
+  const m = s.pts.length / 3;
+  const out = Float64Array.from(last.values);
+  // Complete unit grids take their own part of the change; the rest goes along a direction.
+  const rest = potentials.map((v, k) => {
+    const dv = v - last.potentials[k];
+    if (dv === 0 || s.units[k].filled < m) return dv;
+    addScaled(out, s.units[k].values, dv);
+    return 0;
+  });
+  const size = Math.hypot(...rest);
+  if (size === 0) return out;
+  const d = rest.map((x) => x / size);
+  // A kept direction ±d (cosine 1 to rounding).
+  for (const g of s.directions) {
+    const cos = g.d.reduce((a, x, k) => a + x * d[k], 0);
+    if (Math.abs(cos) < 1 - 1e-12) continue;
+    addScaled(out, g.values, size * Math.sign(cos));
+    return out;
+  }
+  const x = new Float64Array(level.sys.n);
+  d.forEach((c, k) => c !== 0 && addScaled(x, level.unit[k], c));
+  const values = valuesAt(unitState(level, x, images, []), s.pts, ev);
+  s.directions.push({ d, values });
+  // At most K: by then the unit grids would have served as well.
+  if (s.directions.length > level.unit.length) s.directions.shift();
+  addScaled(out, values, size);
+  return out;
 }
 
 /** Slices of a solved level by superposition (see the header); null when cancelled. */
@@ -343,9 +438,8 @@ export function superposedSlices(
 ): SliceResult[] | null {
   const store = storeOf(level);
   const out: SliceResult[] = [];
-  const eps = scene.medium.permittivity;
-  let fresh: FieldState3d | null = state ?? null;
-  const freshState = () => (fresh ??= combinedState(scene, level, images, potentials));
+  let combined: FieldState3d | null = state ?? null;
+  const fresh = () => (combined ??= combinedState(scene, level, images, potentials));
   for (const slice of scene.slices) {
     const where = JSON.stringify([slice.plane, slice.at, slice.from, slice.to]);
     const L = sliceLayout(scene, slice, maxGridCells, potentials, diagnostics, store.lines.get(where));
@@ -363,77 +457,32 @@ export function superposedSlices(
     const key = JSON.stringify([slice.plane, slice.at, slice.from, slice.to, L.nu, L.nv, grid]);
     let s = store.slices.get(key);
     if (s && !sameCells(s.outside, L.outside)) s = undefined;
-    // A grid too large to keep K + 1 copies of, or one not complete that a use should not complete now: evaluated afresh.
+    // A grid too large to keep K + 1 copies of is evaluated afresh.
     const tooLarge = L.nu * L.nv * 4 * (level.unit.length + 1) > MAX_STORED_VALUES;
     if (!tooLarge && !s) {
-      s = { ...newStored(pts, level), outside: Int32Array.from(L.outside), shifted: { of: null, cells: [] } };
+      s = { ...newStored(pts, level), outside: Int32Array.from(L.outside) };
       store.slices.set(key, s);
       // A few geometries' slices at most: drop the oldest.
       trim(store.slices, 8);
     }
-    // A grid too large to keep K + 1 copies of, or one a use should not complete now: evaluated afresh.
-    if (!s || (!isComplete(s, level) && !shouldComplete(s, level, ev))) {
-      if (isCancelled?.()) return null;
-      const st = freshState();
-      const values = valuesAt(st, pts, ev);
-      const f = [0, 0, 0, 0];
-      for (let i = 0; i < m; i++) {
-        for (let c = 0; c < 4; c++) f[c] = values[4 * i + c];
-        if (!f.every(Number.isFinite)) {
-          // A cell centre on a point or line charge: the value a quarter cell off it.
-          L.centre(L.outside[i], p);
-          L.shift(p);
-          const g = potentialAndField(st, p[0], p[1], p[2], 'grid');
-          for (let c = 0; c < 4; c++) f[c] = g[c];
-        }
-        L.store(L.outside[i], f);
-      }
-      out.push(L.result);
-      continue;
-    }
-    if (!complete(s, level, images, scene.charges, ev, isCancelled)) return null;
-    const cells = shiftedCells(s, level, images, scene.charges, L, p);
+    if (isCancelled?.()) return null;
+    const values = s ? valuesFor(s, level, images, scene, potentials, ev, fresh, isCancelled) : valuesAt(fresh(), pts, ev);
+    if (!values) return null;
     const f = [0, 0, 0, 0];
-    const shifted = new Map(cells.map((c) => [c.m, c]));
     for (let i = 0; i < m; i++) {
-      const c = shifted.get(i);
-      if (c) combine(c.units, c.free, 0, potentials, eps, f);
-      else combine(s.units, s.free?.values ?? null, 4 * i, potentials, eps, f);
+      for (let c = 0; c < 4; c++) f[c] = values[4 * i + c];
+      if (!f.every(Number.isFinite)) {
+        // A cell centre on a point or line charge: the value a quarter cell off it (as evaluateSlices).
+        L.centre(L.outside[i], p);
+        L.shift(p);
+        const g = potentialAndField(fresh(), p[0], p[1], p[2], 'grid');
+        for (let c = 0; c < 4; c++) f[c] = g[c];
+      }
       L.store(L.outside[i], f);
     }
     out.push(L.result);
   }
   return out;
-}
-
-/** The cells of a complete slice whose centre falls on a free charge, with every solution's value a quarter cell off it. */
-function shiftedCells(
-  s: SliceStored,
-  level: Level3d,
-  images: Image[],
-  charges: Scene3d['charges'],
-  L: Pick<SliceLayout, 'centre' | 'shift'>,
-  p: number[],
-): SliceStored['shifted']['cells'] {
-  const free = s.free;
-  if (!free) return [];
-  if (s.shifted.of === free.of) return s.shifted.cells;
-  const cells: SliceStored['shifted']['cells'] = [];
-  const fs = unitState(level, free.of.x, images, charges);
-  for (let i = 0; i < s.outside.length; i++) {
-    let finite = true;
-    for (let c = 0; c < 4; c++) finite &&= Number.isFinite(free.values[4 * i + c]);
-    if (finite) continue;
-    L.centre(s.outside[i], p);
-    L.shift(p);
-    cells.push({
-      m: i,
-      units: level.unit.map((u) => potentialAndField(unitState(level, u, images, []), p[0], p[1], p[2], 'grid')),
-      free: potentialAndField(fs, p[0], p[1], p[2], 'grid'),
-    });
-  }
-  s.shifted = { of: free.of, cells };
-  return cells;
 }
 
 function treeOf(store: LevelStore, level: Level3d, images: Image[]): FieldEvaluator {
@@ -450,7 +499,6 @@ function sameCells(a: Int32Array, b: readonly number[]): boolean {
 /** Probe points by superposition: the precise sums per solution, stored per probe set (only points outside conductors and in front of ground planes). */
 export function superposedProbes(scene: Scene3d, level: Level3d, images: Image[], potentials: readonly number[]): ProbeResult[] {
   const store = storeOf(level);
-  const eps = scene.medium.permittivity;
   const behind = behindGround(scene);
   const layout = scene.probes.flatMap((probe, pi) => probePoints(probe).map((at) => ({ probe: pi, at, k: insideElectrode(scene, at), behind: behind(at) })));
   const open = layout.filter((q) => q.k < 0 && !q.behind);
@@ -463,16 +511,13 @@ export function superposedProbes(scene: Scene3d, level: Level3d, images: Image[]
     store.probes.set(key, s);
     trim(store.probes, 8);
   }
-  const ev: Evaluator = { tree: null, mode: 'precise' };
-  if (!isComplete(s, level) && !shouldComplete(s, level, ev)) return evaluateProbes(scene, combinedState(scene, level, images, potentials), potentials);
-  complete(s, level, images, scene.charges, ev);
-  const f = [0, 0, 0, 0];
+  const values = valuesFor(s, level, images, scene, potentials, { tree: null, mode: 'precise' }, () => combinedState(scene, level, images, potentials))!;
   let i = 0;
   const points = layout.map((q) => {
     if (q.k >= 0) return { at: q.at, potential: potentials[q.k], field: [0, 0, 0], fieldMagnitude: 0 };
     if (q.behind) return { at: q.at, potential: 0, field: [0, 0, 0], fieldMagnitude: 0 };
-    combine(s.units, s.free?.values ?? null, 4 * i++, potentials, eps, f);
-    return { at: q.at, potential: f[0], field: [f[1], f[2], f[3]], fieldMagnitude: Math.hypot(f[1], f[2], f[3]) };
+    const [phi, ex, ey, ez] = values.subarray(4 * i, 4 * ++i);
+    return { at: q.at, potential: phi, field: [ex, ey, ez], fieldMagnitude: Math.hypot(ex, ey, ez) };
   });
   return scene.probes.map((probe, pi) => ({ name: probe.name, points: points.filter((_, j) => layout[j].probe === pi) }));
 }
@@ -494,20 +539,19 @@ export function superposedSurfaceFields(scene: Scene3d, level: Level3d, images: 
     store.thin = newStored(pts, level);
   }
   const s = store.thin;
-  const ev: Evaluator = { tree: null, mode: 'precise' };
-  if (!isComplete(s, level) && !shouldComplete(s, level, ev)) {
-    return surfaceFields({ sys: level.sys, x, charges: scene.charges, images, permittivity: scene.medium.permittivity });
-  }
-  complete(s, level, images, scene.charges, ev);
+  const state: FieldState3d = { sys: level.sys, x, charges: scene.charges, images, permittivity: scene.medium.permittivity };
+  const values = valuesFor(s, level, images, scene, potentials, { tree: null, mode: 'precise' }, () => state)!;
   const E = new Float64Array(n);
-  for (let j = 0; j < n; j++) E[j] = Math.abs(x[j]);
-  const f = [0, 0, 0, 0];
   let i = 0;
   for (let j = 0; j < n; j++) {
-    if (!mesh.thin[j]) continue;
-    combine(s.units, s.free?.values ?? null, 4 * i++, potentials, scene.medium.permittivity, f);
-    const en = f[1] * mesh.normal[3 * j] + f[2] * mesh.normal[3 * j + 1] + f[3] * mesh.normal[3 * j + 2];
+    if (!mesh.thin[j]) {
+      E[j] = Math.abs(x[j]);
+      continue;
+    }
+    // As surfaceFields: the larger face's |x|/2 + |E·n|.
+    const en = values[4 * i + 1] * mesh.normal[3 * j] + values[4 * i + 2] * mesh.normal[3 * j + 1] + values[4 * i + 3] * mesh.normal[3 * j + 2];
     E[j] = Math.abs(x[j]) / 2 + Math.abs(en);
+    i++;
   }
   return E;
 }

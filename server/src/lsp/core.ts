@@ -111,7 +111,7 @@ export class ServerCore {
 
   close(uri: string): void {
     this.clearTimer(uri);
-    this.solver.cancel(uri);
+    this.solver.cancel(uri, true);
     this.documents.delete(uri);
     this.host.publishDiagnostics(uri, 0, []);
   }
@@ -185,7 +185,12 @@ export class ServerCore {
     const electrodes = electrodeLocations(state.analysis);
     const statements = state.analysis.ast.statements;
     const geometry = geometrySignature(scene);
-    const levels: SolveLevel[] = state.solved?.geometry === geometry && state.solved.level === 'full' ? ['full'] : ['coarse', 'full'];
+    // A drive-only edit of a 3d scene asks for the coarse picture too: the worker sums what the stored
+    // per-electrode grids hold and evaluates the rest afresh, one evaluation a level, and skips the
+    // coarse level once the grids are complete (warmed while idle). The 2d engines build their grids
+    // at the first drive edit, so for them the coarse pass is skipped as before.
+    const drivesOnly = state.solved?.geometry === geometry && state.solved.level === 'full';
+    const levels: SolveLevel[] = drivesOnly && scene.space !== '3d' ? ['full'] : ['coarse', 'full'];
     const start = () => {
       this.timers.delete(uri);
       const seconds = this.settings.maxSolveTime;
@@ -203,7 +208,7 @@ export class ServerCore {
       this.status(state, { state: 'solving', level: levels[0] });
       this.solver.solve(
         uri,
-        { scene, levels, maxPanels: this.settings.maxPanels, maxGridCells: this.settings.maxGridCells },
+        { scene, levels, maxPanels: this.settings.maxPanels, maxGridCells: this.settings.maxGridCells, geometry },
         {
           onResult: (level, result, solveMs) => {
             const current = this.documents.get(uri);

@@ -1,7 +1,16 @@
 // Runs one solve job, level by level, on the thread that calls it (the solve worker). The engine
 // cache passed in keeps meshes and factorizations between jobs, so an edit that changes only a
 // drive reuses the factorization.
+//
+// Drive-only edits sum stored per-electrode grids (engine/superpose.ts), which cost about K + 1
+// evaluations to build. A live job never waits for that build: it takes what is stored and
+// evaluates the rest afresh (one evaluation, the same values). The build happens while the worker
+// is idle (warmSolveJob, after a job is done), in resumable steps that a newly posted job stops; once
+// both levels' grids of a scene are complete, a job for it skips the coarse picture.
+import type { Scene } from '../../../grammar/scene';
 import { solveScene, type EngineCache } from '../engine/index';
+import { withGridBuilding } from '../engine/superpose';
+import type { SolveLevel } from '../protocol';
 import type { FromWorker, SolveJob } from './worker-messages';
 
 /**
@@ -10,31 +19,84 @@ import type { FromWorker, SolveJob } from './worker-messages';
  */
 export const COARSE_GRID_CELLS = 4096;
 
+/** Scenes whose stored grids are complete on both levels, newest last; a few, as the engine cache keeps a few levels. */
+export class WarmScenes {
+  private readonly keys: string[] = [];
+  constructor(private readonly most = 2) {}
+  has(key: string | null): boolean {
+    return key !== null && this.keys.includes(key);
+  }
+  add(key: string): void {
+    this.keys.splice(this.keys.indexOf(key) >>> 0, this.keys.includes(key) ? 1 : 0);
+    this.keys.push(key);
+    while (this.keys.length > this.most) this.keys.shift();
+  }
+}
+
+/** What a scene's stored grids depend on: the geometry, the free charges and the limits (null without a geometry signature). */
+export function warmKey(job: Pick<SolveJob, 'scene' | 'geometry' | 'maxPanels' | 'maxGridCells'>): string | null {
+  if (job.geometry === undefined) return null;
+  const charges = JSON.stringify(job.scene.charges, (key, value) => (key === 'range' || key === 'nameRange' ? undefined : value));
+  return JSON.stringify([job.geometry, charges, job.maxPanels, job.maxGridCells]);
+}
+
+function solveLevel(scene: Scene, job: SolveJob, level: SolveLevel, cache: EngineCache, isCancelled: () => boolean, superpose = false) {
+  const coarse = level === 'coarse';
+  return solveScene(scene, {
+    level,
+    maxPanels: job.maxPanels,
+    maxGridCells: coarse ? Math.min(job.maxGridCells, COARSE_GRID_CELLS) : job.maxGridCells,
+    isCancelled,
+    cache,
+    superpose,
+  });
+}
+
 export function runSolveJob(
   job: SolveJob,
   cache: EngineCache,
   isCancelled: () => boolean,
   post: (message: FromWorker) => void,
+  warm: WarmScenes = new WarmScenes(),
 ): void {
   try {
-    for (const level of job.levels) {
+    // With every stored grid ready the full level costs about what the coarse one does: skip the coarse one.
+    const levels = warm.has(warmKey(job)) && job.levels.includes('full') ? (['full'] as const) : job.levels;
+    for (const level of levels) {
       if (isCancelled()) return post({ type: 'done', id: job.id, state: 'cancelled' });
       const started = performance.now();
-      const coarse = level === 'coarse';
-      const result = solveScene(job.scene, {
-        level,
-        maxPanels: job.maxPanels,
-        maxGridCells: coarse ? Math.min(job.maxGridCells, COARSE_GRID_CELLS) : job.maxGridCells,
-        isCancelled,
-        cache,
-      });
+      const result = withGridBuilding('stored-only', () => solveLevel(job.scene, job, level, cache, isCancelled));
       if (result === null || isCancelled()) return post({ type: 'done', id: job.id, state: 'cancelled' });
       // The cap above is ours, not the user's: the grid warning (VS408) counts only for the full level.
-      if (coarse) result.diagnostics = result.diagnostics.filter((d) => d.code !== 'VS408');
+      if (level === 'coarse') result.diagnostics = result.diagnostics.filter((d) => d.code !== 'VS408');
       post({ type: 'result', id: job.id, level, result, solveMs: performance.now() - started });
     }
     post({ type: 'done', id: job.id, state: 'done' });
   } catch (error) {
     post({ type: 'done', id: job.id, state: 'failed', message: error instanceof Error ? error.message : String(error) });
   }
+}
+
+/**
+ * Idle work after a job that ended 'done': builds the stored grids of drive-only edits for its scene,
+ * the coarse level first (the first picture of the next drive edit), then the full one. Stops when
+ * `stop` says so (a new job was posted); what was built is kept and the next warm-up goes on from
+ * there. Returns whether the scene is warm. The results are thrown away.
+ */
+export function warmSolveJob(job: SolveJob, cache: EngineCache, stop: () => boolean, warm: WarmScenes): boolean {
+  const key = warmKey(job);
+  if (key === null) return false;
+  if (warm.has(key)) return true;
+  try {
+    for (const level of ['coarse', 'full'] as const) {
+      if (stop()) return false;
+      const result = withGridBuilding('build', () => solveLevel(job.scene, job, level, cache, stop, true));
+      if (result === null) return false;
+    }
+  } catch {
+    // A warm-up that fails leaves the live solves as they are: they evaluate afresh.
+    return false;
+  }
+  warm.add(key);
+  return true;
 }

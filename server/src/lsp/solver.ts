@@ -9,13 +9,15 @@ import type { Scene } from '../../../grammar/scene';
 import type { Result } from '../engine/result';
 import type { SolveLevel } from '../protocol';
 import type { SweepPayload } from './sweep-runner';
-import type { FromWorker, SolveJob, SweepJob } from './worker-messages';
+import { GENERATION_SLOTS, IDLE_STOP_SLOT, POSTED_SLOT, type FromWorker, type SolveJob, type SweepJob, type WorkerInit } from './worker-messages';
 
 export interface SolveRequest {
   scene: Scene;
   levels: SolveLevel[];
   maxPanels: number;
   maxGridCells: number;
+  /** What the factorization depends on (core.ts geometrySignature): lets the worker warm the stored grids of drive-only edits while idle. */
+  geometry?: string;
 }
 
 export interface SolveCallbacks {
@@ -43,16 +45,19 @@ export interface Solver {
   solve(uri: string, request: SolveRequest, callbacks: SolveCallbacks): void;
   /** Starts a live sweep of a document, cancelled like a solve (by a newer solve, sweep or cancel). Optional: test solvers may lack it. */
   sweep?(uri: string, request: SweepRequest, callbacks: SweepCallbacks): void;
-  /** Cancels the document's solve, if any. */
-  cancel(uri: string): void;
+  /**
+   * Cancels the document's solve, if any. The worker's idle work (warming the stored grids of
+   * drive-only edits) goes on until the next job is posted, unless `idleToo` (the document closed).
+   */
+  cancel(uri: string, idleToo?: boolean): void;
   dispose(): void;
 }
 
-const SLOTS = 256;
+const SLOTS = GENERATION_SLOTS;
 
-/** Generation bookkeeping shared by both solvers: one Int32 slot per document, in shared memory. */
+/** Generation bookkeeping shared with the worker: one Int32 slot per document, then the posted-jobs and idle-stop counters, in shared memory. */
 class Generations {
-  readonly buffer = new SharedArrayBuffer(SLOTS * 4);
+  readonly buffer = new SharedArrayBuffer((SLOTS + 2) * 4);
   readonly slots = new Int32Array(this.buffer);
   private slotOf = new Map<string, number>();
   private nextSlot = 0;
@@ -76,6 +81,14 @@ class Generations {
   }
   isCurrent(slot: number, generation: number): boolean {
     return Atomics.load(this.slots, slot) === generation;
+  }
+  /** A job is being posted: the worker's idle work stops. */
+  posted(): void {
+    Atomics.add(this.slots, POSTED_SLOT, 1);
+  }
+  /** The worker's idle work stops, with no job to follow. */
+  stopIdle(): void {
+    Atomics.add(this.slots, IDLE_STOP_SLOT, 1);
   }
 }
 
@@ -107,6 +120,7 @@ export class WorkerSolver implements Solver {
     if (!worker) return callbacks.onDone('failed', 'the solve worker stopped after repeated crashes');
     const job: SolveJob = { type: 'solve', id: this.nextId++, slot, generation, ...request };
     this.pending.set(job.id, { slot, generation, callbacks });
+    this.generations.posted();
     worker.postMessage(job);
   }
 
@@ -116,11 +130,13 @@ export class WorkerSolver implements Solver {
     if (!worker) return callbacks.onDone('failed', 'the solve worker stopped after repeated crashes');
     const job: SweepJob = { type: 'sweep', id: this.nextId++, slot, generation, uri, ...request };
     this.pending.set(job.id, { slot, generation, callbacks });
+    this.generations.posted();
     worker.postMessage(job);
   }
 
-  cancel(uri: string): void {
+  cancel(uri: string, idleToo = false): void {
     this.generations.advance(uri);
+    if (idleToo) this.generations.stopIdle();
   }
 
   dispose(): void {
@@ -135,7 +151,8 @@ export class WorkerSolver implements Solver {
   private ensureWorker(): Worker | null {
     if (this.worker) return this.worker;
     if (this.crashes > 5) return null;
-    const worker = new Worker(this.workerPath, { workerData: { generations: this.generations.buffer } });
+    const init: WorkerInit = { generations: this.generations.buffer, postedBefore: Atomics.load(this.generations.slots, POSTED_SLOT) };
+    const worker = new Worker(this.workerPath, { workerData: init });
     worker.unref();
     worker.on('message', (message: FromWorker) => this.receive(message));
     const fail = (why: string) => {

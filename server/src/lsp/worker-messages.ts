@@ -5,9 +5,18 @@ import type { Result } from '../engine/result';
 import type { SolveLevel } from '../protocol';
 import type { SweepPayload } from './sweep-runner';
 
-/** Given to the worker at start: one Int32 slot per document, holding its newest solve generation. */
+/** Documents with a generation slot of their own (more share slots, and then cancel each other's solves). */
+export const GENERATION_SLOTS = 256;
+/** The Int32 after the documents' slots counts the jobs posted to the worker: idle work runs only when the worker has received them all. */
+export const POSTED_SLOT = GENERATION_SLOTS;
+/** The next one counts requests to stop idle work (a document closed). */
+export const IDLE_STOP_SLOT = GENERATION_SLOTS + 1;
+
+/** Given to the worker at start: GENERATION_SLOTS Int32 slots, one per document, holding its newest solve generation, then POSTED_SLOT and IDLE_STOP_SLOT. */
 export interface WorkerInit {
   generations: SharedArrayBuffer;
+  /** POSTED_SLOT when the worker was made (jobs posted to an earlier worker). */
+  postedBefore: number;
 }
 
 export interface SolveJob {
@@ -22,6 +31,8 @@ export interface SolveJob {
   levels: SolveLevel[];
   maxPanels: number;
   maxGridCells: number;
+  /** What the engine's factorization depends on (core.ts geometrySignature); with it the worker warms the stored grids of drive-only edits when idle. */
+  geometry?: string;
 }
 
 /** A live sweep of a document's text (server/src/sweep.ts), on the coarse level; cancelled like a solve. */
