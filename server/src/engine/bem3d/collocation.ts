@@ -19,7 +19,8 @@ export function surfaceCollocation(scene: Scene3d, mesh: Mesh, diameter: Float64
     if (!shape || shape.kind === 'disc' || shape.kind === 'plate') continue;
     const p: [number, number, number] = [c[3 * j], c[3 * j + 1], c[3 * j + 2]];
     const d = signedDistance3d(shape, p);
-    if (!Number.isFinite(d) || Math.abs(d) > 0.5 * diameter[j]) continue;
+    // A centroid already on the surface (a flat face: d is zero up to rounding) stays exactly where it is.
+    if (!Number.isFinite(d) || Math.abs(d) > 0.5 * diameter[j] || Math.abs(d) <= 1e-9 * diameter[j]) continue;
     for (let k = 0; k < 3; k++) out[3 * j + k] = p[k] - d * nrm[3 * j + k];
   }
   return out;
