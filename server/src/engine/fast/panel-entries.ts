@@ -12,7 +12,7 @@
 // and directions in tests/fast/panel-entries.test.ts), the 7-point rule's own bound at its 3
 // diameters, and most entries the H-matrix computes are that far: assembly spends fewer than half
 // the square roots on them.
-import { panelPotential, type Panels } from '../kernels/triangle';
+import { potentialExact, potentialGauss, type Panels } from '../kernels/triangle';
 import type { EntrySource } from './aca';
 
 /** One image: x′ = flip·x + shift, charge times sign. */
@@ -54,7 +54,8 @@ export function farRule(P: Panels): FarRule {
 export function farPanelPotential(P: Panels, F: FarRule, j: number, x: number, y: number, z: number): number {
   const c = P.centroid;
   const dx = x - c[3 * j], dy = y - c[3 * j + 1], dz = z - c[3 * j + 2];
-  if (dx * dx + dy * dy + dz * dz <= F.farSq[j]) return panelPotential(P, j, x, y, z);
+  const r2 = dx * dx + dy * dy + dz * dz;
+  if (r2 <= F.farSq[j]) return r2 > P.farSq[j] ? potentialGauss(P, j, x, y, z) : potentialExact(P, j, x, y, z);
   const g = F.points, o = 9 * j;
   const ax = x - g[o], ay = y - g[o + 1], az = z - g[o + 2];
   const bx = x - g[o + 3], by = y - g[o + 4], bz = z - g[o + 5];
