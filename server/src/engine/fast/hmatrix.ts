@@ -193,38 +193,74 @@ export function assembleHMatrix(src: EntrySource, tree: ClusterTree, options: HO
 
 /**
  * ys[v·n + i] += Σ_j A_ij · xs[v·n + j] over blocks [b0, b1) of one pack, for the K vectors stacked
- * in xs and ys (tree order). One pass over the stored numbers serves all K vectors: the product is
- * bound by memory traffic, so K vectors cost little more than one.
+ * in xs and ys (tree order). One pass over the stored numbers serves all K vectors, two at a time
+ * in the inner loops (each stored number is loaded once per pair).
  */
 export function packProduct(p: BlockPack, b0: number, b1: number, xs: Float64Array, ys: Float64Array, K: number, n: number): void {
+  for (let v = 0; v < K; v += 2) {
+    if (v + 1 < K) packProductPair(p, b0, b1, xs, ys, v * n, (v + 1) * n);
+    else packProductOne(p, b0, b1, xs, ys, v * n);
+  }
+}
+
+/** One vector at offset o of xs and ys. */
+function packProductOne(p: BlockPack, b0: number, b1: number, xs: Float64Array, ys: Float64Array, o: number): void {
   const H = p.heads, A = p.values;
-  const t = new Float64Array(K);
   for (let b = b0; b < b1; b++) {
     const h = 6 * b;
-    const r0 = H[h], m = H[h + 1], c0 = H[h + 2], nc = H[h + 3], rank = H[h + 4], off = H[h + 5];
+    const r0 = H[h] + o, m = H[h + 1], c0 = H[h + 2] + o, nc = H[h + 3], rank = H[h + 4], off = H[h + 5];
     if (rank < 0) {
       for (let a = 0; a < m; a++) {
-        const o = off + a * nc;
-        for (let v = 0; v < K; v++) {
-          const xo = v * n + c0;
-          let s = 0;
-          for (let k = 0; k < nc; k++) s += A[o + k] * xs[xo + k];
-          ys[v * n + r0 + a] += s;
-        }
+        const ro = off + a * nc;
+        let s = 0;
+        for (let k = 0; k < nc; k++) s += A[ro + k] * xs[c0 + k];
+        ys[r0 + a] += s;
       }
     } else {
       const vOff = off + rank * m;
       for (let l = 0; l < rank; l++) {
         const ov = vOff + l * nc, ou = off + l * m;
-        for (let v = 0; v < K; v++) {
-          const xo = v * n + c0;
-          let s = 0;
-          for (let k = 0; k < nc; k++) s += A[ov + k] * xs[xo + k];
-          t[v] = s;
+        let t = 0;
+        for (let k = 0; k < nc; k++) t += A[ov + k] * xs[c0 + k];
+        for (let a = 0; a < m; a++) ys[r0 + a] += t * A[ou + a];
+      }
+    }
+  }
+}
+
+/** Two vectors at offsets o1 and o2 of xs and ys, in one pass. */
+function packProductPair(p: BlockPack, b0: number, b1: number, xs: Float64Array, ys: Float64Array, o1: number, o2: number): void {
+  const H = p.heads, A = p.values;
+  for (let b = b0; b < b1; b++) {
+    const h = 6 * b;
+    const r0 = H[h], m = H[h + 1], c0 = H[h + 2], nc = H[h + 3], rank = H[h + 4], off = H[h + 5];
+    const x1 = o1 + c0, x2 = o2 + c0, y1 = o1 + r0, y2 = o2 + r0;
+    if (rank < 0) {
+      for (let a = 0; a < m; a++) {
+        const ro = off + a * nc;
+        let s1 = 0, s2 = 0;
+        for (let k = 0; k < nc; k++) {
+          const e = A[ro + k];
+          s1 += e * xs[x1 + k];
+          s2 += e * xs[x2 + k];
         }
-        for (let v = 0; v < K; v++) {
-          const tv = t[v], yo = v * n + r0;
-          for (let a = 0; a < m; a++) ys[yo + a] += tv * A[ou + a];
+        ys[y1 + a] += s1;
+        ys[y2 + a] += s2;
+      }
+    } else {
+      const vOff = off + rank * m;
+      for (let l = 0; l < rank; l++) {
+        const ov = vOff + l * nc, ou = off + l * m;
+        let t1 = 0, t2 = 0;
+        for (let k = 0; k < nc; k++) {
+          const e = A[ov + k];
+          t1 += e * xs[x1 + k];
+          t2 += e * xs[x2 + k];
+        }
+        for (let a = 0; a < m; a++) {
+          const u = A[ou + a];
+          ys[y1 + a] += t1 * u;
+          ys[y2 + a] += t2 * u;
         }
       }
     }
