@@ -19,6 +19,7 @@ import { FieldEvaluator } from '../server/src/engine/fast/field-evaluator';
 import { closeFastPool, fastThreads, setFastWorkerScript } from '../server/src/engine/fast/pool';
 import { isFastWorker, startFastWorker } from '../server/src/engine/fast/worker';
 import { hmatrixStorage } from '../server/src/engine/fast/hmatrix';
+import { FAST_TOLERANCE } from '../server/src/engine/fast/bem3d';
 import { boxSurface, icosphere, joinMeshes } from '../tests/fast/fixtures';
 
 const IDENTITY = [{ sign: 1, flip: [1, 1, 1], shift: [0, 0, 0] }];
@@ -55,6 +56,8 @@ function gc(): void {
 interface FastRun {
   n: number;
   ms: number;
+  /** CPU time of the whole process (all threads). */
+  cpuMs: number;
   assembleMs: number;
   solveMs: number;
   iterations: number[];
@@ -64,18 +67,21 @@ interface FastRun {
   xs: Float64Array[];
 }
 
-function runFast(mesh: Mesh, threads?: number): FastRun {
+/** Builds and solves both right-hand sides; `tol` defaults to the 3D solver's own GMRES tolerance. */
+function runFast(mesh: Mesh, threads?: number, tol = FAST_TOLERANCE): FastRun {
   gc();
   const t0 = performance.now();
+  const cpu0 = process.cpuUsage();
   const S = buildPanelSolver({ vertices: mesh.vertices, triangles: mesh.triangles, points: mesh.centroid, scale: INV_4PI, images: IDENTITY }, { threads })!;
   const t1 = performance.now();
   // Both right-hand sides in lockstep (one pass over the H-matrix per GMRES round), as the 3D solver does.
-  const rs = S.solveMany(rhs(mesh), [], { tol: 1e-10 })!;
+  const rs = S.solveMany(rhs(mesh), [], { tol })!;
   const xs = rs.map((r) => r.x);
   const iterations = rs.map((r) => r.info.iterations);
   const t2 = performance.now();
+  const cpu = process.cpuUsage(cpu0);
   const store = hmatrixStorage(S.H);
-  return { n: mesh.area.length, ms: t2 - t0, assembleMs: t1 - t0, solveMs: t2 - t1, iterations, storeMB: store.bytes / 2 ** 20, rssMB: rssMB(), meanRank: store.meanRank, xs };
+  return { n: mesh.area.length, ms: t2 - t0, cpuMs: (cpu.user + cpu.system) / 1000, assembleMs: t1 - t0, solveMs: t2 - t1, iterations, storeMB: store.bytes / 2 ** 20, rssMB: rssMB(), meanRank: store.meanRank, xs };
 }
 
 function runDense(mesh: Mesh): { ms: number; kind: string; storeMB: number; rssMB: number; xs: Float64Array[] } {
@@ -117,7 +123,7 @@ function denseAgainstFast(small: boolean): void {
   for (const target of small ? [1000] : [1000, 2000, 4000]) {
     const mesh = scene(target);
     const d = runDense(mesh);
-    const fr = runFast(mesh);
+    const fr = runFast(mesh, undefined, 1e-10);
     const Cd = capacitance(mesh, d.xs), Cf = capacitance(mesh, fr.xs);
     let dC = 0;
     for (let i = 0; i < 2; i++) for (let k = 0; k < 2; k++) dC = Math.max(dC, Math.abs(Cd[i][k] - Cf[i][k]) / Math.abs(Cd[i][i]));
@@ -138,8 +144,8 @@ function denseAgainstFast(small: boolean): void {
 }
 
 function fastAlone(sizes: number[]): void {
-  console.log('\n-- fast alone --');
-  console.log('panels | total ms  assemble  solve | GMRES its | mean rank | H store MiB | rss MiB | C11 (4πε0·m)');
+  console.log(`\n-- fast alone (GMRES to ${FAST_TOLERANCE}, the 3D solver's tolerance; CPU: all threads of the process, which other work on the machine does not inflate as much as wall time) --`);
+  console.log('panels | total ms  assemble  solve | CPU ms | GMRES its | mean rank | H store MiB | rss MiB | C11 (4πε0·m)');
   const fit: [number, number][] = [];
   for (const target of sizes) {
     const mesh = scene(target);
@@ -147,7 +153,7 @@ function fastAlone(sizes: number[]): void {
     const C = capacitance(mesh, r.xs);
     if (target <= 64000) fit.push([Math.log(r.n), Math.log(r.ms)]);
     console.log(
-      `${String(r.n).padStart(6)} | ${f(r.ms).padStart(8)} ${f(r.assembleMs).padStart(9)} ${f(r.solveMs).padStart(6)} | ${r.iterations.join('/').padStart(9)} | ${f(r.meanRank, 1).padStart(9)} | ${f(r.storeMB, 0).padStart(11)} | ${f(r.rssMB).padStart(7)} | ${C[0][0].toFixed(5)}`,
+      `${String(r.n).padStart(6)} | ${f(r.ms).padStart(8)} ${f(r.assembleMs).padStart(9)} ${f(r.solveMs).padStart(6)} | ${f(r.cpuMs).padStart(6)} | ${r.iterations.join('/').padStart(9)} | ${f(r.meanRank, 1).padStart(9)} | ${f(r.storeMB, 0).padStart(11)} | ${f(r.rssMB).padStart(7)} | ${C[0][0].toFixed(5)}`,
     );
   }
   const mx = fit.reduce((s, p) => s + p[0], 0) / fit.length, my = fit.reduce((s, p) => s + p[1], 0) / fit.length;
