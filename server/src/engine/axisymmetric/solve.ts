@@ -10,7 +10,7 @@ import type { Result } from '../result';
 import type { Mirror } from '../planar/bem2d';
 import type { Element2d, Piece } from '../planar/elements';
 import { solve2d, type FreeSource, type Solve2dOptions } from '../planar/solve2d';
-import { addAxisPoint, addRing } from './ring';
+import { addAxisPoint, addRing, addRingFast } from './ring';
 import { profilePieces } from './profile';
 
 /** Element size per preset, relative to the scene's characteristic length (half its largest side). */
@@ -90,6 +90,7 @@ export function solveAxisymmetric(scene: SceneAxisymmetric, options: Solve2dOpti
     {
       space: 'axisymmetric',
       kernel: addRing,
+      gridKernel: addRingFast,
       line: null,
       mirror,
       infinityUnknown: false,
