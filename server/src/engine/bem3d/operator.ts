@@ -1,6 +1,6 @@
 // The 3d system as a LinearOperator for the chosen solver: a dense matrix for the dense solvers,
 // or whatever a registered method builds (e.g. a compressed or treecode operator) from the system.
-import { cutRuns, spatialOrder } from '../linear/block-jacobi';
+import { spatialOrder } from '../linear/block-jacobi';
 import { twoLevel } from '../linear/two-level';
 import { denseOperator, needsDenseMatrix, type LinearOperator, type SolverKind } from '../linear/solver';
 import { assembleDense, entry, type Bem3dSystem } from './system';
@@ -30,8 +30,8 @@ export function buildOperator(sys: Bem3dSystem, kind: SolverKind, isCancelled?: 
     // Iterative: precondition with a coarse correction over clusters of nearby panels, then the
     // diagonal blocks of nearby panels (per electrode); the clusters nest in the blocks.
     const order = spatialOrder(sys.points, sys.mesh.electrode);
-    const precondition = twoLevel(sys.n, A, cutRuns(order, PRECONDITIONER_BLOCK), cutRuns(order, PRECONDITIONER_CLUSTER));
-    return { ...op, apply: op.apply, precondition };
+    const pc = twoLevel(sys.n, A, order, PRECONDITIONER_BLOCK, PRECONDITIONER_CLUSTER);
+    return { ...op, precondition: pc.apply, preconditionMany: pc.applyMany };
   }
   // A method with no operator of its own: entries computed on the fly (O(N²) per product, no storage).
   const n = sys.n;

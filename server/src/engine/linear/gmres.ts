@@ -20,6 +20,8 @@ export interface GmresOptions {
   maxIterations?: number;
   /** z ← M⁻¹·r; identity when absent. */
   precondition?: (r: Float64Array, z: Float64Array) => void;
+  /** The same M⁻¹ on several vectors at once (gmresMany batches each round's Arnoldi vectors through it). */
+  preconditionMany?: (rs: Float64Array[], zs: Float64Array[]) => void;
   isCancelled?: () => boolean;
 }
 
@@ -45,8 +47,9 @@ function dot(a: Float64Array, b: Float64Array): number {
   return s;
 }
 
-/** A product request: the stepper wants y ← A·v before its next step. */
+/** A product request: the stepper wants y ← A·v (after v ← M⁻¹·pre, when pre is given) before its next step. */
 interface Request {
+  pre?: Float64Array;
   v: Float64Array;
   y: Float64Array;
 }
@@ -81,9 +84,11 @@ function gmresStepper(n: number, b: Float64Array, initial: Float64Array | null |
 
   const finish = (converged: boolean): GmresResult => (result = { x, iterations, residual, converged });
   const needResidual = (): Request => ({ v: x, y: r });
-  // Next Arnoldi product: A·M⁻¹·v_k.
+  // Next Arnoldi product: A·M⁻¹·v_k (the driver preconditions in a batch when it can).
+  const batched = options.preconditionMany !== undefined;
   const needArnoldi = (): Request => {
     iterations++;
+    if (batched) return { pre: V[k], v: z, y: w };
     M(V[k], z);
     return { v: z, y: w };
   };
@@ -203,6 +208,13 @@ export function gmresMany(op: BatchOperator, bs: Float64Array[], options: GmresM
   });
   while (pending.length > 0) {
     if (options.isCancelled?.()) return null;
+    const pre = pending.filter((p) => p.req.pre);
+    if (pre.length > 0) {
+      options.preconditionMany!(
+        pre.map((p) => p.req.pre!),
+        pre.map((p) => p.req.v),
+      );
+    }
     op.applyMany(
       pending.map((p) => p.req.v),
       pending.map((p) => p.req.y),

@@ -20,6 +20,8 @@ export interface LinearOperator {
   diagonal?(): Float64Array;
   /** A preconditioner z ≈ A⁻¹·r (e.g. a near-field block solve); overrides the diagonal when present. */
   precondition?(r: Float64Array, z: Float64Array): void;
+  /** The same preconditioner on several vectors at once (zs[k] from rs[k]), when it has a batched form. */
+  preconditionMany?(rs: Float64Array[], zs: Float64Array[]): void;
 }
 
 /** A dense operator over a row-major n×n matrix. */
@@ -46,20 +48,27 @@ export function denseOperator(n: number, matrix: Float64Array): LinearOperator {
   };
 }
 
-/**
- * ys[k] ← A·xs[k] for all k: two rows of A against up to four vectors at a time, so that each
- * load of A serves four products and each load of x two (the product is bound by loads in plain
- * JavaScript: measured 1.5x faster than one vector at a time). Each y_i is summed in the same order
- * as one-vector apply, so the results are identical to it.
- */
+/** ys[k] ← A·xs[k] for all k, A square n×n row-major (see productMany). */
 export function denseProductMany(n: number, A: Float64Array, xs: Float64Array[], ys: Float64Array[]): void {
+  productMany(n, n, A, xs, ys);
+}
+
+/**
+ * ys[k] ← A·xs[k] for all k, A rows×cols row-major (vectors may be subarrays): two rows of A
+ * against up to four vectors at a time, so that each load of A serves four products and each load
+ * of x two (the product is bound by loads in plain JavaScript: measured 1.5-2x faster than one
+ * vector at a time). Each y_i is summed in the same order as a one-vector product, so the results
+ * are identical to it.
+ */
+export function productMany(rows: number, cols: number, A: Float64Array, xs: Float64Array[], ys: Float64Array[]): void {
   let k = 0;
-  for (; k + 4 <= xs.length; k += 4) productFour(n, A, xs[k], xs[k + 1], xs[k + 2], xs[k + 3], ys[k], ys[k + 1], ys[k + 2], ys[k + 3]);
-  for (; k + 2 <= xs.length; k += 2) productTwo(n, A, xs[k], xs[k + 1], ys[k], ys[k + 1]);
-  if (k < xs.length) productTwo(n, A, xs[k], xs[k], ys[k], ys[k]);
+  for (; k + 4 <= xs.length; k += 4) productFour(rows, cols, A, xs[k], xs[k + 1], xs[k + 2], xs[k + 3], ys[k], ys[k + 1], ys[k + 2], ys[k + 3]);
+  for (; k + 2 <= xs.length; k += 2) productTwo(rows, cols, A, xs[k], xs[k + 1], ys[k], ys[k + 1]);
+  if (k < xs.length) productTwo(rows, cols, A, xs[k], xs[k], ys[k], ys[k]);
 }
 
 function productFour(
+  rows: number,
   n: number,
   A: Float64Array,
   x0: Float64Array,
@@ -72,7 +81,7 @@ function productFour(
   y3: Float64Array,
 ): void {
   let i = 0;
-  for (; i + 2 <= n; i += 2) {
+  for (; i + 2 <= rows; i += 2) {
     const ra = i * n, rb = ra + n;
     let a0 = 0, a1 = 0, a2 = 0, a3 = 0, b0 = 0, b1 = 0, b2 = 0, b3 = 0;
     for (let j = 0; j < n; j++) {
@@ -96,7 +105,7 @@ function productFour(
     y2[i + 1] = b2;
     y3[i + 1] = b3;
   }
-  if (i < n) {
+  if (i < rows) {
     productRow(n, A, i, x0, y0);
     productRow(n, A, i, x1, y1);
     productRow(n, A, i, x2, y2);
@@ -105,9 +114,9 @@ function productFour(
 }
 
 /** Two vectors (or one, given twice: the second write repeats the first). */
-function productTwo(n: number, A: Float64Array, x0: Float64Array, x1: Float64Array, y0: Float64Array, y1: Float64Array): void {
+function productTwo(rows: number, n: number, A: Float64Array, x0: Float64Array, x1: Float64Array, y0: Float64Array, y1: Float64Array): void {
   let i = 0;
-  for (; i + 2 <= n; i += 2) {
+  for (; i + 2 <= rows; i += 2) {
     const ra = i * n, rb = ra + n;
     let a0 = 0, a1 = 0, b0 = 0, b1 = 0;
     for (let j = 0; j < n; j++) {
@@ -123,7 +132,7 @@ function productTwo(n: number, A: Float64Array, x0: Float64Array, x1: Float64Arr
     y0[i + 1] = b0;
     y1[i + 1] = b1;
   }
-  if (i < n) {
+  if (i < rows) {
     productRow(n, A, i, x0, y0);
     productRow(n, A, i, x1, y1);
   }
@@ -257,6 +266,7 @@ export function gmresSolver(op: LinearOperator, name: string): LinearSolver {
         initial: options?.initial,
         tolerance: options?.tolerance ?? 1e-7,
         precondition,
+        preconditionMany: op.precondition ? op.preconditionMany?.bind(op) : undefined,
         isCancelled: options?.isCancelled,
       });
       if (!results) return null;
