@@ -121,8 +121,11 @@ export function usablePiece(p: Piece, rMin = -Infinity): boolean {
 }
 
 /** Image of opposite sign in the plane z = c: φ_img(p) = −φ(Mp), E_img = −M·E(Mp). */
+const imageScratch = new Float64Array(3);
+
 function addMirrored(acc: Float64Array, field: boolean, add: (a: Float64Array) => void): void {
-  const img = new Float64Array(3);
+  const img = imageScratch;
+  img[0] = img[1] = img[2] = 0;
   add(img);
   acc[0] -= img[0];
   if (field) {

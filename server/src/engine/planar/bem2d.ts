@@ -16,7 +16,8 @@ export type KernelAdd = (xs: number, ys: number, x: number, y: number, w: number
 
 /**
  * Adds w·(G, E_x, E_y) at (x, y) of unit reduced density on a whole straight element, in closed form
- * (a kernel may offer one; it then replaces quadrature on straight elements everywhere).
+ * (a kernel may offer one; it then replaces the adaptive quadrature on near straight elements; far
+ * ones keep the cheaper fixed Gauss rule).
  */
 export type LineAdd = (el: Curve2d, x: number, y: number, w: number, field: boolean, acc: Float64Array) => void;
 
@@ -167,11 +168,6 @@ function addRow(elements: Element2d[], far: Float64Array, kernel: KernelAdd, lin
     if (j === skip) continue;
     const el = elements[j];
     acc[0] = 0;
-    if (line && el.kind === 'line') {
-      line(el, x, y, 1, false, acc);
-      a[row + j] += sign * acc[0];
-      continue;
-    }
     const dx = x - el.mx;
     const dy = y - el.my;
     const reach = FAR_RATIO * el.length;
@@ -180,7 +176,8 @@ function addRow(elements: Element2d[], far: Float64Array, kernel: KernelAdd, lin
       kernel(far[o], far[o + 1], x, y, far[o + 2], false, acc);
       kernel(far[o + 3], far[o + 4], x, y, far[o + 5], false, acc);
       kernel(far[o + 6], far[o + 7], x, y, far[o + 8], false, acc);
-    } else integrateCurve(el, 0, el.length, x, y, kernel, 1, false, acc);
+    } else if (line && el.kind === 'line') line(el, x, y, 1, false, acc);
+    else integrateCurve(el, 0, el.length, x, y, kernel, 1, false, acc);
     a[row + j] += sign * acc[0];
   }
 }

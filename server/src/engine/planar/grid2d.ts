@@ -212,6 +212,17 @@ function buildClusters(elements: Element2d[], order: number): Clusters {
   return { first: Int32Array.from(first), last: Int32Array.from(last), offset, proxies, children, usable, roots, centreX, centreY, radius };
 }
 
+/** What depends on the elements alone (Gauss points, clusters), kept per element list and order. */
+const geometries = new WeakMap<Element2d[], Map<number, { rule3: Float64Array; rule5: Float64Array; clusters: Clusters }>>();
+
+function geometryOf(elements: Element2d[], order: number): { rule3: Float64Array; rule5: Float64Array; clusters: Clusters } {
+  let byOrder = geometries.get(elements);
+  if (!byOrder) geometries.set(elements, (byOrder = new Map()));
+  let g = byOrder.get(order);
+  if (!g) byOrder.set(order, (g = { rule3: curveRules(elements, 3), rule5: curveRules(elements, 5), clusters: buildClusters(elements, order) }));
+  return g;
+}
+
 /** Sets every cluster's proxy charges for densities tau (3-point Gauss rule per element). */
 function setCharges(c: Clusters, elements: Element2d[], tau: Float64Array): void {
   const rule = gaussLegendre(3);
@@ -241,9 +252,7 @@ export function gridEvaluate(src: GridSources, grid: Grid2d, mask: Uint8Array, o
   const counts: GridCounts = { direct: 0, gathered: 0 };
   const n = elements.length;
   if (n === 0) return counts;
-  const rule3 = curveRules(elements, 3);
-  const rule5 = curveRules(elements, 5);
-  const clusters = buildClusters(elements, accuracy.order);
+  const { rule3, rule5, clusters } = geometryOf(elements, accuracy.order);
   setCharges(clusters, elements, tau);
   const nc = clusters.first.length;
   // Items: id < n an element, id ≥ n cluster id − n; item = 2·id + (1 for the image in the mirror).
@@ -312,10 +321,6 @@ export function gridEvaluate(src: GridSources, grid: Grid2d, mask: Uint8Array, o
     }
     const el = elements[id];
     const t = tau[id];
-    if (line && el.kind === 'line') {
-      line(el, x, y, t, true, into);
-      return;
-    }
     const dx = x - el.mx;
     const dy = y - el.my;
     const d2 = dx * dx + dy * dy;
@@ -325,7 +330,8 @@ export function gridEvaluate(src: GridSources, grid: Grid2d, mask: Uint8Array, o
       kernel(rule3[o], rule3[o + 1], x, y, t * rule3[o + 2], true, into);
       kernel(rule3[o + 3], rule3[o + 4], x, y, t * rule3[o + 5], true, into);
       kernel(rule3[o + 6], rule3[o + 7], x, y, t * rule3[o + 8], true, into);
-    } else if (d2 > NEAR5 * l2) {
+    } else if (line && el.kind === 'line') line(el, x, y, t, true, into);
+    else if (d2 > NEAR5 * l2) {
       const o = id * 15;
       for (let q = 0; q < 15; q += 3) kernel(rule5[o + q], rule5[o + q + 1], x, y, t * rule5[o + q + 2], true, into);
     } else integrateCurve(el, 0, el.length, x, y, kernel, t, true, into);
@@ -646,8 +652,10 @@ function interpolateInto(n: Nodes, u: number, v: number, acc: Float64Array): voi
 }
 
 /** Sets the child's values to the parent's interpolant at the child's points. */
+const carried = new Float64Array(3);
+
 function carryDown(parent: Nodes, child: Nodes): void {
-  const acc = new Float64Array(3);
+  const acc = carried;
   for (let a = 0; a < child.pu; a++) {
     for (let b = 0; b < child.pv; b++) {
       acc[0] = acc[1] = acc[2] = 0;

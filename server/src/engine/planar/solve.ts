@@ -64,6 +64,8 @@ export function lineSegmentKernel(scale: number): LineAdd {
   };
 }
 
+const imageScratch = new Float64Array(3);
+
 export function solvePlanar(scene: ScenePlanar, options: Solve2dOptions = {}): Result | null {
   const scale = characteristicLength(scene);
   const eps = EPSILON_0 * scene.medium.permittivity;
@@ -83,7 +85,8 @@ export function solvePlanar(scene: ScenePlanar, options: Solve2dOptions = {}): R
       add(x, y, field, acc, self) {
         if (!self) kernel(xs, ys, x, y, w, field, acc);
         if (!mirror) return;
-        const img = new Float64Array(3);
+        const img = imageScratch;
+        img[0] = img[1] = img[2] = 0;
         kernel(xs, ys, mirror.axis === 0 ? 2 * mirror.at - x : x, mirror.axis === 1 ? 2 * mirror.at - y : y, w, field, img);
         acc[0] -= img[0];
         if (field) {

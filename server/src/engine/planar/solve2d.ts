@@ -464,17 +464,14 @@ function addSources(elements: Element2d[], far: Float64Array, tau: Float64Array,
     const t = tau[j];
     if (t === 0) continue;
     const el = elements[j];
-    if (line && el.kind === 'line') {
-      line(el, x, y, t, true, acc);
-      continue;
-    }
     const ratio = Math.hypot(x - el.mx, y - el.my) / el.length;
     if (ratio > FAR_RATIO) {
       for (let q = 0; q < FAR_RULE; q++) {
         const o = (j * FAR_RULE + q) * 3;
         kernel(far[o], far[o + 1], x, y, t * far[o + 2], true, acc);
       }
-    } else integrateCurve(el, 0, el.length, x, y, kernel, t, true, acc);
+    } else if (line && el.kind === 'line') line(el, x, y, t, true, acc);
+    else integrateCurve(el, 0, el.length, x, y, kernel, t, true, acc);
   }
 }
 
@@ -721,18 +718,22 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
   function gridValues(elements: Element2d[], tau: Float64Array, free: FreeSource[], infinity: number, grid: Grid2d, mask: Uint8Array): Float64Array {
     const out = new Float64Array(3 * grid.nu * grid.nv);
     const acc = new Float64Array(3);
+    const fold = setup.space === 'axisymmetric';
     for (let idx = 0; idx < mask.length; idx++) {
       if (!mask[idx]) continue;
-      const [x, y, sign] = setup.toSolver(grid.u0 + ((idx % grid.nu) + 0.5) * grid.du, grid.v0 + (Math.floor(idx / grid.nu) + 0.5) * grid.dv);
+      const u = grid.u0 + ((idx % grid.nu) + 0.5) * grid.du;
+      const y = grid.v0 + (Math.floor(idx / grid.nu) + 0.5) * grid.dv;
+      // As setup.toSolver: axisymmetric cells at u < 0 see the half-plane mirrored.
+      const x = fold ? Math.abs(u) : u;
       acc[0] = infinity;
       acc[1] = acc[2] = 0;
       for (const f of free) f.add(x, y, true, acc, false);
       out[3 * idx] = acc[0];
-      out[3 * idx + 1] = sign * acc[1];
+      out[3 * idx + 1] = fold && u < 0 ? -acc[1] : acc[1];
       out[3 * idx + 2] = acc[2];
     }
     const accuracy = options.level === 'coarse' ? GRID_COARSE : GRID_FULL;
-    gridEvaluate({ elements, tau, kernel: setup.gridKernel ?? setup.kernel, line: setup.line, mirror: setup.mirror, fold: setup.space === 'axisymmetric', logScale: setup.space === 'planar' ? setup.scale : undefined }, grid, mask, out, accuracy);
+    gridEvaluate({ elements, tau, kernel: setup.gridKernel ?? setup.kernel, line: setup.line, mirror: setup.mirror, fold, logScale: setup.space === 'planar' ? setup.scale : undefined }, grid, mask, out, accuracy);
     return out;
   }
 
