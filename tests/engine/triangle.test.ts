@@ -2,11 +2,12 @@ import { describe, expect, it } from 'vitest';
 import {
   FAR_RATIO,
   gradientExact,
-  gradientGauss,
+  gradientFar,
   panelGradient,
   panelPotential,
   panelPotentialAndGradient,
   potentialExact,
+  potentialFar,
   potentialGauss,
   preparePanels,
 } from '../../server/src/engine/kernels/triangle';
@@ -120,22 +121,29 @@ describe('panel integrals of 1/R and its gradient', () => {
     expect(jump).toBeCloseTo(4 * Math.PI, 6);
   });
 
-  it(`the 7-point Gauss rule agrees with the closed form beyond ${FAR_RATIO} panel diameters`, () => {
-    const diam = P.diameter[0];
-    let worstI = 0, worstG = 0;
-    for (const dir of [normal, [1, 0, 0], [0.3, -0.8, 0.5], [-0.6, 0.2, -0.7]]) {
-      const u = scale(dir, 1 / len(dir));
-      const p = add(centroid, scale(u, FAR_RATIO * diam * 1.0001));
-      const I = potentialExact(P, 0, p[0], p[1], p[2]);
-      worstI = Math.max(worstI, Math.abs(potentialGauss(P, 0, p[0], p[1], p[2]) - I) / I);
-      const ge = new Float64Array(3), gg = new Float64Array(3);
-      gradientExact(P, 0, p[0], p[1], p[2], ge);
-      gradientGauss(P, 0, p[0], p[1], p[2], gg);
-      worstG = Math.max(worstG, Math.hypot(gg[0] - ge[0], gg[1] - ge[1], gg[2] - ge[2]) / Math.hypot(ge[0], ge[1], ge[2]));
-    }
-    expect(worstI).toBeLessThan(2e-7);
-    expect(worstG).toBeLessThan(1.5e-6);
-  });
+  // Each Gauss rule from its switch distance on (kernels/triangle.ts): 7 points from FAR_RATIO
+  // diameters, 6 from 2.5, 4 from 6, 3 from 10; bounds measured over random triangles (3e-6, 2.5e-5).
+  for (const [points, ratio] of [[7, FAR_RATIO], [6, 2.5], [4, 6], [3, 10]]) {
+    it(`the ${points}-point Gauss rule agrees with the closed form from ${ratio} panel diameters on`, () => {
+      const diam = P.diameter[0];
+      let worstI = 0, worstG = 0;
+      for (const dir of [normal, [1, 0, 0], [0.3, -0.8, 0.5], [-0.6, 0.2, -0.7], sub(B, A), sub(C, B)]) {
+        const u = scale(dir, 1 / len(dir));
+        const p = add(centroid, scale(u, ratio * diam * 1.0001));
+        const I = potentialExact(P, 0, p[0], p[1], p[2]);
+        worstI = Math.max(worstI, Math.abs(potentialFar(P, 0, p[0], p[1], p[2]) - I) / I);
+        const ge = new Float64Array(3), gg = new Float64Array(3);
+        gradientExact(P, 0, p[0], p[1], p[2], ge);
+        gradientFar(P, 0, p[0], p[1], p[2], gg);
+        worstG = Math.max(worstG, Math.hypot(gg[0] - ge[0], gg[1] - ge[1], gg[2] - ge[2]) / Math.hypot(ge[0], ge[1], ge[2]));
+      }
+      expect(worstI).toBeLessThan(3e-6);
+      expect(worstG).toBeLessThan(2.5e-5);
+      // Not the same numbers as the 7-point rule beyond the first switch: the rule really changes.
+      const far = add(centroid, scale(normal, ratio * diam * 1.0001));
+      if (points !== 7) expect(potentialFar(P, 0, far[0], far[1], far[2])).not.toBe(potentialGauss(P, 0, far[0], far[1], far[2]));
+    });
+  }
 
   it('the closed form stays accurate far away (no cancellation), matching the Gauss rule at 100 diameters', () => {
     const p = add(centroid, [60, -70, 40]);

@@ -14,22 +14,36 @@
 // In the panel's plane (d = 0) the normal part is the principal value (zero): the jump ±σ/(2ε) of
 // the normal field across a charged sheet is left to the caller. Evaluated with one square root per
 // vertex and one logarithm and one arctangent per edge (closedForm).
-// Far from the panel a 7-point Gauss rule of degree 5 (Dunavant, Int. J. Numer. Methods Eng. 21,
-// 1129, 1985) is used instead: beyond FAR_RATIO panel diameters from the centroid its relative error
-// is below 2e-7 for 1/R and 1.5e-6 for the gradient (measured over random directions; at 2 diameters
-// 2e-6 and 1.5e-5; checked in tests/engine/triangle.test.ts).
+// Far from the panel Gauss rules of Dunavant (Int. J. Numer. Methods Eng. 21, 1129, 1985) are used
+// instead, fewer points the farther away: beyond FAR_RATIO = 2 panel diameters from the centroid the
+// 7-point rule of degree 5, beyond 2.5 the 6-point rule of degree 4, beyond 6 the 4-point rule of
+// degree 3 and beyond 10 the 3-point rule of degree 2. Each switch keeps the relative error below
+// 3e-6 for 1/R and 2.5e-5 for the gradient (worst over 200 random triangles, skinny ones included,
+// and 30 directions each; at its switch distance: 7-point 2.9e-6 and 2.2e-5, 6-point 2.4e-6 and
+// 1.5e-5, 4-point 3.0e-6 and 1.6e-5, 3-point 2.9e-6 and 1.2e-5; measured here, checked in
+// tests/engine/triangle.test.ts), two orders below the discretization error of the meshes used.
+// (The 7-point rule alone from 3 diameters was good to 2e-7 and 1.6e-6 but cost 1.8x the assembly
+// time on the samples' coarse meshes, where a fifth of all entries lie within 3 diameters.)
 import type { Mesh } from '../mesh/types';
 
-/** Distance from the centroid, in panel diameters, beyond which the Gauss rule replaces the closed form. */
-export const FAR_RATIO = 3;
+/** Distance from the centroid, in panel diameters, beyond which Gauss rules replace the closed form. */
+export const FAR_RATIO = 2;
 
-/** Dunavant's 7-point rule: barycentric coordinates (a, b, b) and permutations, with weights summing to 1. */
+/** Dunavant's 7-point rule (degree 5): barycentric coordinates (a, b, b) and permutations, with weights summing to 1. */
 const G_A1 = 0.0597158717897698;
 const G_B1 = 0.4701420641051151;
 const G_W1 = 0.1323941527885062;
 const G_A2 = 0.7974269853530873;
 const G_B2 = 0.1012865073234563;
 const G_W2 = 0.1259391805448271;
+/** Dunavant's 6-point rule (degree 4). */
+const H_A1 = 0.10810301816807;
+const H_B1 = 0.445948490915965;
+const H_W1 = 0.223381589678011;
+const H_A2 = 0.816847572980459;
+const H_B2 = 0.091576213509771;
+const H_W2 = 0.109951743655322;
+/** The rules one after another: 7 points (degree 5), 6 (degree 4), 4 (degree 3: negative centroid weight), 3 (degree 2). */
 const GAUSS_BARY: number[][] = [
   [1 / 3, 1 / 3, 1 / 3],
   [G_A1, G_B1, G_B1],
@@ -38,14 +52,36 @@ const GAUSS_BARY: number[][] = [
   [G_A2, G_B2, G_B2],
   [G_B2, G_A2, G_B2],
   [G_B2, G_B2, G_A2],
+  [H_A1, H_B1, H_B1],
+  [H_B1, H_A1, H_B1],
+  [H_B1, H_B1, H_A1],
+  [H_A2, H_B2, H_B2],
+  [H_B2, H_A2, H_B2],
+  [H_B2, H_B2, H_A2],
+  [1 / 3, 1 / 3, 1 / 3],
+  [0.6, 0.2, 0.2],
+  [0.2, 0.6, 0.2],
+  [0.2, 0.2, 0.6],
+  [2 / 3, 1 / 6, 1 / 6],
+  [1 / 6, 2 / 3, 1 / 6],
+  [1 / 6, 1 / 6, 2 / 3],
 ];
-const GAUSS_W = [0.225, G_W1, G_W1, G_W1, G_W2, G_W2, G_W2];
-export const GAUSS_POINTS = 7;
+const GAUSS_W = [
+  0.225, G_W1, G_W1, G_W1, G_W2, G_W2, G_W2,
+  H_W1, H_W1, H_W1, H_W2, H_W2, H_W2,
+  -27 / 48, 25 / 48, 25 / 48, 25 / 48,
+  1 / 3, 1 / 3, 1 / 3,
+];
+/** Points stored per panel: all four rules. */
+export const GAUSS_POINTS = 20;
+/** Where each rule starts among a panel's points, and (squared) from how many diameters it is used. */
+const RULE_6 = 7, RULE_4 = 13, RULE_3 = 17;
+const FROM_6_SQ = 2.5 ** 2, FROM_4_SQ = 6 ** 2, FROM_3_SQ = 10 ** 2;
 
 /**
  * Panels prepared for kernel evaluation: everything per panel in flat arrays.
  * vertices 9, normal 3, edge tangents 9, edge outward normals 9, centroid 3, Gauss points 21
- * (already multiplied by nothing: weights are GAUSS_W·area), area, squared far radius.
+ * (weights GAUSS_W·area), area, squared far radius.
  */
 export interface Panels {
   count: number;
@@ -55,12 +91,14 @@ export interface Panels {
   outward: Float64Array;
   centroid: Float64Array;
   area: Float64Array;
-  /** Gauss points, 3 per point, GAUSS_POINTS per panel. */
+  /** Gauss points of the four rules, 3 per point, GAUSS_POINTS per panel. */
   gauss: Float64Array;
   /** Gauss weights (area included), GAUSS_POINTS per panel. */
   gaussWeight: Float64Array;
-  /** (FAR_RATIO · diameter)²: beyond this squared distance from the centroid use the Gauss rule. */
+  /** (FAR_RATIO · diameter)²: beyond this squared distance from the centroid use the Gauss rules. */
   farSq: Float64Array;
+  /** diameter²: the rules' switch distances are multiples of it. */
+  diameterSq: Float64Array;
   /** Longest edge of each panel. */
   diameter: Float64Array;
 }
@@ -79,6 +117,7 @@ export function preparePanels(mesh: Pick<Mesh, 'vertices' | 'triangles'>): Panel
     gauss: new Float64Array(3 * GAUSS_POINTS * count),
     gaussWeight: new Float64Array(GAUSS_POINTS * count),
     farSq: new Float64Array(count),
+    diameterSq: new Float64Array(count),
     diameter: new Float64Array(count),
   };
   const V = mesh.vertices;
@@ -125,6 +164,7 @@ export function preparePanels(mesh: Pick<Mesh, 'vertices' | 'triangles'>): Panel
     }
     P.diameter[j] = diam;
     P.farSq[j] = (FAR_RATIO * diam) ** 2;
+    P.diameterSq[j] = diam * diam;
     for (let c = 0; c < 3; c++) P.centroid[3 * j + c] = (v[o + c] + v[o + 3 + c] + v[o + 6 + c]) / 3;
     for (let g = 0; g < GAUSS_POINTS; g++) {
       const [l0, l1, l2] = GAUSS_BARY[g];
@@ -222,11 +262,32 @@ export function gradientExact(P: Panels, j: number, x: number, y: number, z: num
   gradientFromSums(P, j, out, at);
 }
 
+/** The first of panel j's Gauss points for a point at squared distance d2 from its centroid (see the header). */
+function ruleStart(P: Panels, j: number, d2: number): number {
+  const h2 = P.diameterSq[j];
+  return GAUSS_POINTS * j + (d2 > FROM_3_SQ * h2 ? RULE_3 : d2 > FROM_4_SQ * h2 ? RULE_4 : d2 > FROM_6_SQ * h2 ? RULE_6 : 0);
+}
+
+/** Where a rule that starts at point q (as ruleStart gives) ends. */
+function ruleEnd(P: Panels, j: number, q: number): number {
+  const r = q - GAUSS_POINTS * j;
+  return GAUSS_POINTS * j + (r === 0 ? RULE_6 : r === RULE_6 ? RULE_4 : r === RULE_4 ? RULE_3 : GAUSS_POINTS);
+}
+
 /** I(r) over panel j by the 7-point Gauss rule (accurate far from the panel only). */
 export function potentialGauss(P: Panels, j: number, x: number, y: number, z: number): number {
+  return potentialRule(P, j, x, y, z, GAUSS_POINTS * j);
+}
+
+/** I(r) over panel j by the rule for its distance (accurate beyond FAR_RATIO diameters only). */
+export function potentialFar(P: Panels, j: number, x: number, y: number, z: number): number {
+  return potentialRule(P, j, x, y, z, ruleStart(P, j, centroidDistSq(P, j, x, y, z)));
+}
+
+function potentialRule(P: Panels, j: number, x: number, y: number, z: number, first: number): number {
   const g = P.gauss, w = P.gaussWeight;
   let sum = 0;
-  for (let q = GAUSS_POINTS * j, end = q + GAUSS_POINTS; q < end; q++) {
+  for (let q = first, end = ruleEnd(P, j, first); q < end; q++) {
     const dx = x - g[3 * q], dy = y - g[3 * q + 1], dz = z - g[3 * q + 2];
     sum += w[q] / Math.sqrt(dx * dx + dy * dy + dz * dz);
   }
@@ -235,9 +296,18 @@ export function potentialGauss(P: Panels, j: number, x: number, y: number, z: nu
 
 /** ∇I(r) over panel j by the 7-point Gauss rule, written to out[at..at+2]. */
 export function gradientGauss(P: Panels, j: number, x: number, y: number, z: number, out: Float64Array, at = 0): void {
+  gradientRule(P, j, x, y, z, out, at, GAUSS_POINTS * j);
+}
+
+/** ∇I(r) over panel j by the rule for its distance (beyond FAR_RATIO diameters only), to out[at..at+2]. */
+export function gradientFar(P: Panels, j: number, x: number, y: number, z: number, out: Float64Array, at = 0): void {
+  gradientRule(P, j, x, y, z, out, at, ruleStart(P, j, centroidDistSq(P, j, x, y, z)));
+}
+
+function gradientRule(P: Panels, j: number, x: number, y: number, z: number, out: Float64Array, at: number, first: number): void {
   const g = P.gauss, w = P.gaussWeight;
   let gx = 0, gy = 0, gz = 0;
-  for (let q = GAUSS_POINTS * j, end = q + GAUSS_POINTS; q < end; q++) {
+  for (let q = first, end = ruleEnd(P, j, first); q < end; q++) {
     const dx = x - g[3 * q], dy = y - g[3 * q + 1], dz = z - g[3 * q + 2];
     const r2 = dx * dx + dy * dy + dz * dz;
     const s = w[q] / (r2 * Math.sqrt(r2));
@@ -257,26 +327,30 @@ function centroidDistSq(P: Panels, j: number, x: number, y: number, z: number): 
   return dx * dx + dy * dy + dz * dz;
 }
 
-/** I(r) over panel j: closed form near the panel, Gauss rule beyond FAR_RATIO diameters. */
+/** I(r) over panel j: closed form near the panel, Gauss rules beyond FAR_RATIO diameters. */
 export function panelPotential(P: Panels, j: number, x: number, y: number, z: number): number {
-  return centroidDistSq(P, j, x, y, z) > P.farSq[j] ? potentialGauss(P, j, x, y, z) : potentialExact(P, j, x, y, z);
+  const d2 = centroidDistSq(P, j, x, y, z);
+  return d2 > P.farSq[j] ? potentialRule(P, j, x, y, z, ruleStart(P, j, d2)) : potentialExact(P, j, x, y, z);
 }
 
-/** ∇I(r) over panel j: closed form near the panel, Gauss rule beyond FAR_RATIO diameters. */
+/** ∇I(r) over panel j: closed form near the panel, Gauss rules beyond FAR_RATIO diameters. */
 export function panelGradient(P: Panels, j: number, x: number, y: number, z: number, out: Float64Array, at = 0): void {
-  if (centroidDistSq(P, j, x, y, z) > P.farSq[j]) gradientGauss(P, j, x, y, z, out, at);
+  const d2 = centroidDistSq(P, j, x, y, z);
+  if (d2 > P.farSq[j]) gradientRule(P, j, x, y, z, out, at, ruleStart(P, j, d2));
   else gradientExact(P, j, x, y, z, out, at);
 }
 
 /**
  * I(r) and ∇I(r) over panel j together (one pass over the edges or Gauss points), written to
- * out[at] (I) and out[at+1..at+3] (∇I): closed form near the panel, Gauss rule beyond FAR_RATIO.
+ * out[at] (I) and out[at+1..at+3] (∇I): closed form near the panel, Gauss rules beyond FAR_RATIO.
  */
 export function panelPotentialAndGradient(P: Panels, j: number, x: number, y: number, z: number, out: Float64Array, at = 0): void {
-  if (centroidDistSq(P, j, x, y, z) > P.farSq[j]) {
+  const d2 = centroidDistSq(P, j, x, y, z);
+  if (d2 > P.farSq[j]) {
     const g = P.gauss, w = P.gaussWeight;
     let p = 0, gx = 0, gy = 0, gz = 0;
-    for (let q = GAUSS_POINTS * j, end = q + GAUSS_POINTS; q < end; q++) {
+    const first = ruleStart(P, j, d2);
+    for (let q = first, end = ruleEnd(P, j, first); q < end; q++) {
       const dx = x - g[3 * q], dy = y - g[3 * q + 1], dz = z - g[3 * q + 2];
       const r2 = dx * dx + dy * dy + dz * dz;
       const inv = 1 / Math.sqrt(r2);
