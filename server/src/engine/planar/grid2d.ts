@@ -120,7 +120,8 @@ interface Clusters {
   last: Int32Array;
   /** Arc-length offset of each element from the start of its run, and the cluster's run start element. */
   offset: Float64Array;
-  proxies: { x: Float64Array; y: Float64Array; s: Float64Array; w: Float64Array; q: Float64Array }[];
+  /** Proxy sets per cluster, one per order of PROXY_ORDERS up to the accuracy's order (the last the full one). */
+  proxies: { x: Float64Array; y: Float64Array; s: Float64Array; w: Float64Array; q: Float64Array }[][];
   /** Child items of each cluster (clusters or elements, as item ids). */
   children: number[][];
   /** Whether the cluster may act through its proxies (an arc cluster must turn by at most MAX_TURN). */
@@ -141,6 +142,15 @@ const CLUSTER_SEPARATION = 3;
  * the arc's centre), not D: a strongly curved cluster interpolates poorly in s however far the target.
  */
 const MAX_TURN = 0.5;
+
+/**
+ * Proxy orders a cluster keeps. Interpolation along s errs by about ρ^−p with ρ = t + √(t² + 1),
+ * t = d/r the target's distance in cluster half-lengths; a far pair takes the fewest proxies that
+ * match the full order at the closest separation allowed, p·ln ρ ≥ order·ln ρ(CLUSTER_SEPARATION).
+ */
+const PROXY_ORDERS = [3, 4, 5, 6, 8];
+const proxyOrders = (order: number) => [...PROXY_ORDERS.filter((p) => p < order), order];
+const rho = (t: number) => t + Math.sqrt(t * t + 1);
 /** A near cluster longer than this fraction of a block's half-diagonal (squared) is opened at the block. */
 const OPEN = 0.25;
 
@@ -161,7 +171,7 @@ function buildClusters(elements: Element2d[], order: number): Clusters {
   const offset = new Float64Array(n);
   const runStart = new Int32Array(n);
   const size = elements.reduce((m, el) => Math.max(m, Math.abs(el.x0), Math.abs(el.y0)), 0) || 1;
-  const p = new Float64Array(4);
+  const point = new Float64Array(4);
   const make = (start: number, a: number, b: number): number => {
     if (b - a <= CLUSTER_LEAF) {
       const items: number[] = [];
@@ -176,24 +186,28 @@ function buildClusters(elements: Element2d[], order: number): Clusters {
   const pushCluster = (start: number, a: number, b: number, items: number[]): number => {
     const base = elements[start];
     const s0 = offset[a], s1 = offset[b - 1] + elements[b - 1].length;
-    curvePoint(base, 0.5 * (s0 + s1), p);
+    curvePoint(base, 0.5 * (s0 + s1), point);
     const c = first.length;
     first.push(a);
     last.push(b);
     children.push(items);
     usable.push(base.kind === 'line' || (s1 - s0) <= MAX_TURN * base.radius);
-    centreX.push(p[0]);
-    centreY.push(p[1]);
+    centreX.push(point[0]);
+    centreY.push(point[1]);
     radius.push(0.5 * (s1 - s0));
-    const sx = new Float64Array(order), sy = new Float64Array(order), ss = new Float64Array(order);
-    for (let k = 0; k < order; k++) {
-      ss[k] = 0.5 * (s0 + s1) - 0.5 * (s1 - s0) * Math.cos((k * Math.PI) / (order - 1));
-      curvePoint(base, ss[k], p);
-      sx[k] = p[0];
-      sy[k] = p[1];
+    const sets: Clusters['proxies'][number] = [];
+    for (const p of proxyOrders(order)) {
+      const sx = new Float64Array(p), sy = new Float64Array(p), ss = new Float64Array(p);
+      for (let k = 0; k < p; k++) {
+        ss[k] = 0.5 * (s0 + s1) - 0.5 * (s1 - s0) * Math.cos((k * Math.PI) / (p - 1));
+        curvePoint(base, ss[k], point);
+        sx[k] = point[0];
+        sy[k] = point[1];
+      }
+      const w = Float64Array.from({ length: p }, (_, k) => (k % 2 === 0 ? 1 : -1) * (k === 0 || k === p - 1 ? 0.5 : 1));
+      sets.push({ x: sx, y: sy, s: ss, w, q: new Float64Array(p) });
     }
-    const w = Float64Array.from({ length: order }, (_, k) => (k % 2 === 0 ? 1 : -1) * (k === 0 || k === order - 1 ? 0.5 : 1));
-    proxies.push({ x: sx, y: sy, s: ss, w, q: new Float64Array(order) });
+    proxies.push(sets);
     return c;
   };
   for (let a = 0; a < n; ) {
@@ -227,16 +241,18 @@ function geometryOf(elements: Element2d[], order: number): { rule3: Float64Array
 function setCharges(c: Clusters, elements: Element2d[], tau: Float64Array): void {
   const rule = gaussLegendre(3);
   const l = new Float64Array(64);
-  c.proxies.forEach((px, k) => {
-    px.q.fill(0);
-    for (let j = c.first[k]; j < c.last[k]; j++) {
-      const t = tau[j];
-      if (t === 0) continue;
-      const L = elements[j].length;
-      for (let g = 0; g < 3; g++) {
-        basis(c.offset[j] + L * rule.nodes[g], px.s, px.w, l);
-        const q = t * L * rule.weights[g];
-        for (let m = 0; m < px.q.length; m++) px.q[m] += q * l[m];
+  c.proxies.forEach((sets, k) => {
+    for (const px of sets) {
+      px.q.fill(0);
+      for (let j = c.first[k]; j < c.last[k]; j++) {
+        const t = tau[j];
+        if (t === 0) continue;
+        const L = elements[j].length;
+        for (let g = 0; g < 3; g++) {
+          basis(c.offset[j] + L * rule.nodes[g], px.s, px.w, l);
+          const q = t * L * rule.weights[g];
+          for (let m = 0; m < px.q.length; m++) px.q[m] += q * l[m];
+        }
       }
     }
   });
@@ -272,6 +288,10 @@ export function gridEvaluate(src: GridSources, grid: Grid2d, mask: Uint8Array, o
   // An element lies within half its arc length of its midpoint; a cluster within half its length of its centre.
   elements.forEach((el, j) => place(j, el.mx, el.my, 0.5 * el.length));
   for (let k = 0; k < nc; k++) place(n + k, clusters.centreX[k], clusters.centreY[k], clusters.radius[k]);
+  // A far cluster's item carries the proxy set it acts through: coded = item + stride·set.
+  const stride = 2 * ids;
+  const orders = proxyOrders(accuracy.order);
+  const needed = accuracy.order * Math.log(rho(CLUSTER_SEPARATION));
   const items: number[] = [];
   for (const id of clusters.roots) {
     items.push(2 * id);
@@ -303,19 +323,21 @@ export function gridEvaluate(src: GridSources, grid: Grid2d, mask: Uint8Array, o
   const img = new Float64Array(3);
   const line = src.line ?? null;
   /** Adds item's (φ, E_x, E_y) at solver point (x, y) into acc (images with their signs). */
-  const addItem = (item: number, x: number, y: number) => {
+  const addItem = (coded: number, x: number, y: number) => {
+    const set = Math.floor(coded / stride);
+    const item = coded - set * stride;
     if (item & 1) {
       const m = mirror!;
       img[0] = img[1] = img[2] = 0;
-      addSource(item >> 1, m.axis === 0 ? 2 * m.at - x : x, m.axis === 1 ? 2 * m.at - y : y, img);
+      addSource(item >> 1, set, m.axis === 0 ? 2 * m.at - x : x, m.axis === 1 ? 2 * m.at - y : y, img);
       acc[0] -= img[0];
       acc[1] += m.axis === 0 ? img[1] : -img[1];
       acc[2] += m.axis === 1 ? img[2] : -img[2];
-    } else addSource(item >> 1, x, y, acc);
+    } else addSource(item >> 1, set, x, y, acc);
   };
-  const addSource = (id: number, x: number, y: number, into: Float64Array) => {
+  const addSource = (id: number, set: number, x: number, y: number, into: Float64Array) => {
     if (id >= n) {
-      const px = clusters.proxies[id - n];
+      const px = clusters.proxies[id - n][set];
       for (let k = 0; k < px.q.length; k++) kernel(px.x[k], px.y[k], x, y, px.q[k], true, into);
       return;
     }
@@ -346,7 +368,7 @@ export function gridEvaluate(src: GridSources, grid: Grid2d, mask: Uint8Array, o
 
   const farField: FarField<Nodes | Expansion> =
     src.logScale !== undefined
-      ? (expansionField(accuracy.terms, src.logScale, elements, tau, rule3, rule5, clusters, cx, cy, mirror) as FarField<Nodes | Expansion>)
+      ? (expansionField(accuracy.terms, src.logScale, elements, tau, rule3, rule5, clusters, cx, cy, mirror, stride) as FarField<Nodes | Expansion>)
       : (interpolationField(accuracy.order, sumAt, acc) as FarField<Nodes | Expansion>);
   const sep2 = accuracy.separation * accuracy.separation;
   const clusterSep2 = CLUSTER_SEPARATION * CLUSTER_SEPARATION;
@@ -407,7 +429,12 @@ export function gridEvaluate(src: GridSources, grid: Grid2d, mask: Uint8Array, o
       const separated = d > 0 && d * d >= sep2 * halfDiag2;
       if (id >= n) {
         const usable = clusters.usable[id - n];
-        if (usable && separated && d * d >= clusterSep2 * r * r) far.push(item);
+        if (usable && separated && d * d >= clusterSep2 * r * r) {
+          const lnRho = Math.log(rho(d / r));
+          let set = 0;
+          while (orders[set] * lnRho < needed) set++;
+          far.push(item + stride * set);
+        }
         else if (!usable || r * r > OPEN * halfDiag2) for (const child of clusters.children[id - n]) stack.push(2 * child + (item & 1));
         else near.push(item);
       } else if (separated && d2 > NEAR5 * 4 * r * r) far.push(item);
@@ -479,7 +506,7 @@ interface Expansion {
   im: Float64Array;
 }
 
-function expansionField(terms: number, scale: number, elements: Element2d[], tau: Float64Array, rule3: Float64Array, rule5: Float64Array, clusters: Clusters, cx: Float64Array, cy: Float64Array, mirror: Mirror | null): FarField<Expansion> {
+function expansionField(terms: number, scale: number, elements: Element2d[], tau: Float64Array, rule3: Float64Array, rule5: Float64Array, clusters: Clusters, cx: Float64Array, cy: Float64Array, mirror: Mirror | null, stride: number): FarField<Expansion> {
   const inv2pi = 1 / (2 * Math.PI);
   const addSource = (t: Expansion, xs: number, ys: number, q: number) => {
     const ax = xs - t.zx, ay = ys - t.zy;
@@ -517,7 +544,8 @@ function expansionField(terms: number, scale: number, elements: Element2d[], tau
     gather(t, list, count) {
       const n = elements.length;
       for (let i = 0; i < count; i++) {
-        const unit = list[i];
+        const set = Math.floor(list[i] / stride);
+        const unit = list[i] - set * stride;
         const j = unit >> 1;
         const image = (unit & 1) === 1;
         const reflect = (x: number, y: number, q: number) => {
@@ -528,7 +556,7 @@ function expansionField(terms: number, scale: number, elements: Element2d[], tau
           addSource(t, x, y, image ? -q : q);
         };
         if (j >= n) {
-          const px = clusters.proxies[j - n];
+          const px = clusters.proxies[j - n][set];
           for (let k = 0; k < px.q.length; k++) reflect(px.x[k], px.y[k], px.q[k]);
           continue;
         }
