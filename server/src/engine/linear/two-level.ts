@@ -6,8 +6,9 @@
 // and B the block-Jacobi inverse (the inverses of A's diagonal blocks),
 //   M⁻¹ = Q + B·(I − A·Q),
 // applied as y = A0⁻¹·R0·r, r' = r − (A·R0ᵀ)·y, z = B·r' + R0ᵀ·y. A·R0ᵀ (n × G) and the blocks'
-// inverses are kept, so a step costs no product with A; several vectors go through at once, each
-// kept matrix read once for up to four of them. On the 3d samples' coarse meshes GMRES to 1e-7
+// LU factors are kept, so a step costs no product with A; several vectors go through at once (A·R0ᵀ
+// read once for up to four of them). Explicit block inverses were tried: they cost more to form
+// (15-30 ms at 1,000 unknowns) than they saved in the solves. On the 3d samples' coarse meshes GMRES to 1e-7
 // needed 9-12 iterations instead of 17-25 with block-Jacobi alone (clusters of 8 and blocks of 64;
 // measured here).
 //
@@ -27,11 +28,14 @@ export function twoLevel(n: number, matrix: Float64Array, order: Int32Array, blo
   if (blockSize % clusterSize !== 0) throw new Error('clusters must nest in blocks');
   // Everything below works in the order's numbering ("position" p holds unknown order[p]).
   const G = Math.ceil(n / clusterSize);
+  // The cluster of each unknown.
+  const cluster = new Int32Array(n);
+  for (let p = 0; p < n; p++) cluster[order[p]] = (p / clusterSize) | 0;
   // AR = A·R0ᵀ in positions (n × G): each row of A summed over the clusters.
   const AR = new Float64Array(n * G);
   for (let p = 0; p < n; p++) {
     const row = order[p] * n, out = p * G;
-    for (let q = 0; q < n; q++) AR[out + ((q / clusterSize) | 0)] += matrix[row + order[q]];
+    for (let j = 0; j < n; j++) AR[out + cluster[j]] += matrix[row + j];
   }
   // A0 = R0·AR (G × G).
   const A0 = new Float64Array(G * G);
@@ -41,11 +45,13 @@ export function twoLevel(n: number, matrix: Float64Array, order: Int32Array, blo
   }
   const coarse = luFactor(G, A0);
   const useCoarse = coarse !== null && !coarse.singular;
-  // Inverses of the diagonal blocks (identity for a singular one).
-  const blocks: { start: number; size: number; inverse: Float64Array }[] = [];
+  // LU factors of the diagonal blocks (a singular one is left out: identity).
+  const blocks: { start: number; size: number; lu: LuFactors }[] = [];
   for (let start = 0; start < n; start += blockSize) {
     const size = Math.min(blockSize, n - start);
-    blocks.push({ start, size, inverse: blockInverse(matrix, n, order, start, size) });
+    const a = new Float64Array(size * size);
+    for (let i = 0; i < size; i++) for (let j = 0; j < size; j++) a[i * size + j] = matrix[order[start + i] * n + order[start + j]];
+    blocks.push({ start, size, lu: luFactor(size, a)! });
   }
   // Scratch per vector, grown on demand: positions of r, of r', of z; coarse values.
   const scratch: { r: Float64Array; rest: Float64Array; z: Float64Array; y: Float64Array; t: Float64Array }[] = [];
@@ -69,14 +75,9 @@ export function twoLevel(n: number, matrix: Float64Array, order: Int32Array, blo
       for (const s of S) for (let p = 0; p < n; p++) s.rest[p] = s.r[p] - s.t[p];
     } else for (const s of S) s.rest.set(s.r);
     // z = B·r' (block by block), + R0ᵀ·y, back to the unknowns' numbering.
-    for (const b of blocks) {
-      productMany(
-        b.size,
-        b.size,
-        b.inverse,
-        S.map((s) => s.rest.subarray(b.start, b.start + b.size)),
-        S.map((s) => s.z.subarray(b.start, b.start + b.size)),
-      );
+    for (const s of S) {
+      s.z.set(s.rest);
+      for (const b of blocks) if (!b.lu.singular) luSolveInPlace(b.lu, s.z.subarray(b.start, b.start + b.size));
     }
     for (let k = 0; k < K; k++) {
       const { z, y } = S[k];
@@ -85,20 +86,4 @@ export function twoLevel(n: number, matrix: Float64Array, order: Int32Array, blo
     }
   };
   return { apply: (r, z) => applyMany([r], [z]), applyMany };
-}
-
-/** The inverse of the diagonal block at positions start..start+size−1 (row-major), by LU; identity if singular. */
-function blockInverse(matrix: Float64Array, n: number, order: Int32Array, start: number, size: number): Float64Array {
-  const a = new Float64Array(size * size);
-  for (let i = 0; i < size; i++) for (let j = 0; j < size; j++) a[i * size + j] = matrix[order[start + i] * n + order[start + j]];
-  const f = luFactor(size, a)!;
-  const inverse = new Float64Array(size * size);
-  const col = new Float64Array(size);
-  for (let j = 0; j < size; j++) {
-    col.fill(0);
-    col[j] = 1;
-    if (!f.singular) luSolveInPlace(f, col);
-    for (let i = 0; i < size; i++) inverse[i * size + j] = col[i];
-  }
-  return inverse;
 }
