@@ -64,7 +64,7 @@ export function productMany(rows: number, cols: number, A: Float64Array, xs: Flo
   let k = 0;
   for (; k + 4 <= xs.length; k += 4) productFour(rows, cols, A, xs[k], xs[k + 1], xs[k + 2], xs[k + 3], ys[k], ys[k + 1], ys[k + 2], ys[k + 3]);
   for (; k + 2 <= xs.length; k += 2) productTwo(rows, cols, A, xs[k], xs[k + 1], ys[k], ys[k + 1]);
-  if (k < xs.length) productTwo(rows, cols, A, xs[k], xs[k], ys[k], ys[k]);
+  if (k < xs.length) productOne(rows, cols, A, xs[k], ys[k]);
 }
 
 function productFour(
@@ -113,7 +113,7 @@ function productFour(
   }
 }
 
-/** Two vectors (or one, given twice: the second write repeats the first). */
+/** Two vectors. */
 function productTwo(rows: number, n: number, A: Float64Array, x0: Float64Array, x1: Float64Array, y0: Float64Array, y1: Float64Array): void {
   let i = 0;
   for (; i + 2 <= rows; i += 2) {
@@ -136,6 +136,23 @@ function productTwo(rows: number, n: number, A: Float64Array, x0: Float64Array, 
     productRow(n, A, i, x0, y0);
     productRow(n, A, i, x1, y1);
   }
+}
+
+/** One vector, two rows at a time. */
+function productOne(rows: number, n: number, A: Float64Array, x: Float64Array, y: Float64Array): void {
+  let i = 0;
+  for (; i + 2 <= rows; i += 2) {
+    const ra = i * n, rb = ra + n;
+    let a = 0, b = 0;
+    for (let j = 0; j < n; j++) {
+      const v = x[j];
+      a += A[ra + j] * v;
+      b += A[rb + j] * v;
+    }
+    y[i] = a;
+    y[i + 1] = b;
+  }
+  if (i < rows) productRow(n, A, i, x, y);
 }
 
 function productRow(n: number, A: Float64Array, i: number, x: Float64Array, y: Float64Array): void {
