@@ -68,9 +68,10 @@ export function addRingFast(a: number, zs: number, r: number, z: number, w: numb
   const d2 = sum * sum + dz2;
   const near2 = diff * diff + dz2;
   if (near2 <= 1e-28 * d2) return;
-  const d = Math.sqrt(d2);
-  const m1 = near2 / d2;
-  const m = (4 * a * r) / d2;
+  const invD2 = 1 / d2;
+  const invD = Math.sqrt(invD2);
+  const m1 = near2 * invD2;
+  const m = 4 * a * r * invD2;
   let k: number, e: number, kMinusE: number;
   if (m < SERIES_BELOW_M) {
     k = seriesK[SERIES_TERMS - 1];
@@ -89,11 +90,12 @@ export function addRingFast(a: number, zs: number, r: number, z: number, w: numb
       L * m1 * (0.2499836831 + m1 * (0.09200180037 + m1 * (0.04069697526 + m1 * 0.00526449639)));
     kMinusE = k - e;
   }
-  const c = (w * a) / Math.PI;
-  acc[0] += (c * k) / d;
+  const cd = (w * a * invD) / Math.PI;
+  acc[0] += cd * k;
   if (!field) return;
-  acc[2] += (c * dz * e) / (d * near2);
-  if (r > 0) acc[1] += c * (kMinusE / (2 * r * d) + (e * diff) / (d * near2));
+  const eNear = (cd * e) / near2;
+  acc[2] += eNear * dz;
+  if (r > 0) acc[1] += (cd * kMinusE) / (2 * r) + eNear * diff;
 }
 
 /**
