@@ -55,7 +55,8 @@ export function entry(sys: Bem3dSystem, i: number, j: number): number {
 
 /**
  * The dense matrix, row-major, A_ij = (1/4π)·Σ_images sign·I_j(image(p_i)); null when cancelled
- * (polled every few rows). Also fills sys.thinRows (see ThinRows).
+ * (polled every few rows). Also fills sys.thinRows (see ThinRows): thin panels' rows first, with
+ * their normal gradients, then the others (fillDenseRows).
  */
 export function assembleDense(sys: Bem3dSystem, isCancelled?: () => boolean): Float64Array | null {
   const n = sys.n;
@@ -65,61 +66,81 @@ export function assembleDense(sys: Bem3dSystem, isCancelled?: () => boolean): Fl
   const { mesh, images } = sys;
   const c = mesh.centroid;
   const thin: number[] = [];
+  const others: number[] = [];
   for (let i = 0; i < n; i++) {
     if (mesh.thin[i] && p[3 * i] === c[3 * i] && p[3 * i + 1] === c[3 * i + 1] && p[3 * i + 2] === c[3 * i + 2]) thin.push(i);
+    else others.push(i);
   }
   const thinRows: ThinRows = { panels: Int32Array.from(thin), rows: new Float64Array(thin.length * n) };
   const I = images.length;
-  // The images of the row's point, and per image the factors of the normal gradient through the reflection.
-  const rx = new Float64Array(I), ry = new Float64Array(I), rz = new Float64Array(I);
   const sign = Float64Array.from(images, (im) => im.sign);
+  const rx = new Float64Array(I), ry = new Float64Array(I), rz = new Float64Array(I);
+  // Per image, the factors of the normal gradient through the reflection (the chain rule:
+  // ∂/∂x_c of f(flip·x + shift) = flip_c·(∂f)_c).
   const gnx = new Float64Array(I), gny = new Float64Array(I), gnz = new Float64Array(I);
   const r = [0, 0, 0];
   const g = new Float64Array(4);
-  let t = 0;
-  for (let i = 0; i < n; i++) {
-    if ((i & 63) === 0 && isCancelled?.()) return null;
-    const row = i * n;
+  for (let t = 0; t < thin.length; t++) {
+    if ((t & 63) === 0 && isCancelled?.()) return null;
+    const i = thin[t], row = i * n, out = t * n;
+    const nx = mesh.normal[3 * i], ny = mesh.normal[3 * i + 1], nz = mesh.normal[3 * i + 2];
     for (let k = 0; k < I; k++) {
       reflect(images[k], p[3 * i], p[3 * i + 1], p[3 * i + 2], r);
       rx[k] = r[0];
       ry[k] = r[1];
       rz[k] = r[2];
+      gnx[k] = images[k].sign * images[k].flip[0] * nx;
+      gny[k] = images[k].sign * images[k].flip[1] * ny;
+      gnz[k] = images[k].sign * images[k].flip[2] * nz;
     }
-    if (t < thin.length && thin[t] === i) {
-      // A thin panel: the potential and its normal gradient in one pass (the chain rule through each
-      // reflection: ∂/∂x_c of f(flip·x + shift) = flip_c·(∂f)_c).
-      const nx = mesh.normal[3 * i], ny = mesh.normal[3 * i + 1], nz = mesh.normal[3 * i + 2];
+    // The potential and its normal gradient in one pass.
+    for (let j = 0; j < n; j++) {
+      let v = 0, gn = 0;
       for (let k = 0; k < I; k++) {
-        gnx[k] = images[k].sign * images[k].flip[0] * nx;
-        gny[k] = images[k].sign * images[k].flip[1] * ny;
-        gnz[k] = images[k].sign * images[k].flip[2] * nz;
+        panelPotentialAndGradient(P, j, rx[k], ry[k], rz[k], g);
+        v += sign[k] * g[0];
+        gn += gnx[k] * g[1] + gny[k] * g[2] + gnz[k] * g[3];
       }
-      const out = t * n;
-      for (let j = 0; j < n; j++) {
-        let v = 0, gn = 0;
-        for (let k = 0; k < I; k++) {
-          panelPotentialAndGradient(P, j, rx[k], ry[k], rz[k], g);
-          v += sign[k] * g[0];
-          gn += gnx[k] * g[1] + gny[k] * g[2] + gnz[k] * g[3];
-        }
-        A[row + j] = INV_4PI * v;
-        thinRows.rows[out + j] = INV_4PI * gn;
-      }
-      t++;
-    } else if (I === 1) {
-      const x = rx[0], y = ry[0], z = rz[0];
-      for (let j = 0; j < n; j++) A[row + j] = INV_4PI * panelPotential(P, j, x, y, z);
-    } else {
-      for (let j = 0; j < n; j++) {
-        let v = 0;
-        for (let k = 0; k < I; k++) v += sign[k] * panelPotential(P, j, rx[k], ry[k], rz[k]);
-        A[row + j] = INV_4PI * v;
-      }
+      A[row + j] = INV_4PI * v;
+      thinRows.rows[out + j] = INV_4PI * gn;
     }
   }
+  if (!fillDenseRows(P, p, images, Int32Array.from(others), A, isCancelled)) return null;
   sys.thinRows = thinRows;
   return A;
+}
+
+/**
+ * Fills the given rows of the dense matrix A (n×n, row-major) with the potential entries. Plain
+ * arrays only, so that a worker thread could fill rows of a shared matrix. False when cancelled.
+ */
+export function fillDenseRows(P: Panels, points: Float64Array, images: readonly Image[], rows: Int32Array, A: Float64Array, isCancelled?: () => boolean): boolean {
+  const n = P.count;
+  const I = images.length;
+  const sign = Float64Array.from(images, (im) => im.sign);
+  const rx = new Float64Array(I), ry = new Float64Array(I), rz = new Float64Array(I);
+  const r = [0, 0, 0];
+  for (let t = 0; t < rows.length; t++) {
+    if ((t & 63) === 0 && isCancelled?.()) return false;
+    const i = rows[t], row = i * n;
+    for (let k = 0; k < I; k++) {
+      reflect(images[k], points[3 * i], points[3 * i + 1], points[3 * i + 2], r);
+      rx[k] = r[0];
+      ry[k] = r[1];
+      rz[k] = r[2];
+    }
+    if (I === 1) {
+      const x = rx[0], y = ry[0], z = rz[0];
+      for (let j = 0; j < n; j++) A[row + j] = INV_4PI * panelPotential(P, j, x, y, z);
+      continue;
+    }
+    for (let j = 0; j < n; j++) {
+      let v = 0;
+      for (let k = 0; k < I; k++) v += sign[k] * panelPotential(P, j, rx[k], ry[k], rz[k]);
+      A[row + j] = INV_4PI * v;
+    }
+  }
+  return true;
 }
 
 /** Accuracy of far-field evaluation: 'precise' keeps the 7-point rule, 'grid' uses the centroid rule far away. */
