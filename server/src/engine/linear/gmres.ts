@@ -171,7 +171,10 @@ function gmresStepper(n: number, b: Float64Array, initial: Float64Array | null |
     switch (phase) {
       case 'start':
         phase = 'restart';
-        return maxIterations > 0 ? needResidual() : finish(false);
+        if (maxIterations <= 0) return finish(false);
+        // From zero, A·x = 0: no product needed.
+        if (!initial) return startCycle();
+        return needResidual();
       case 'restart':
         return startCycle();
       case 'arnoldi':
