@@ -12,7 +12,8 @@ import { join } from 'node:path';
 import { cpus, loadavg } from 'node:os';
 import { analyzeText } from '../grammar/index';
 import type { Expr, Statement } from '../grammar/ast';
-import type { Range } from '../grammar/scene';
+import type { Range, Scene3d } from '../grammar/scene';
+import { meshForScene } from '../server/src/engine/mesh/index';
 import { LspClient } from '../tests/lsp/lsp-client';
 
 const root = join(__dirname, '..');
@@ -112,11 +113,31 @@ interface Row {
   note: string;
 }
 
-async function benchSample(client: LspClient, file: string): Promise<Row> {
-  const uri = `file://${join(root, 'samples', file)}`;
-  let text = readFileSync(join(root, 'samples', file), 'utf8') + '\n# bench\n';
+/**
+ * Issue 4's large scene: sensor-enclosure with a finer mesh size, the largest whose full-level mesh
+ * has at most about 5,000 panels (found by bisection on the mesher's count; the table prints the
+ * count the server reports).
+ */
+const LARGE = { name: 'sensor-enclosure-5k', from: 'sensor-enclosure.vscape', panels: 5000 };
+
+function largeScene(): { text: string; size: number } {
+  const text = readFileSync(join(root, 'samples', LARGE.from), 'utf8');
+  const withSize = (mm: number) => text.replace(/^mesh size ([\d.]+) mm/m, `mesh size ${mm.toFixed(1)} mm`);
+  const panels = (mm: number) => meshForScene(analyzeText(withSize(mm)).scene as Scene3d).area.length;
+  let fine = 2, coarse = Number(/^mesh size ([\d.]+) mm/m.exec(text)?.[1] ?? 30);
+  for (let i = 0; i < 12; i++) {
+    const mid = (fine + coarse) / 2;
+    if (panels(mid) > LARGE.panels) fine = mid;
+    else coarse = mid;
+  }
+  return { text: withSize(coarse), size: coarse };
+}
+
+async function benchSample(client: LspClient, name: string, source: string): Promise<Row> {
+  const uri = `file://${join(root, 'samples', `${name}.vscape`)}`;
+  let text = source + '\n# bench\n';
   let version = 1;
-  const row: Row = { sample: file.replace(/\.vscape$/, ''), panels: '—', diagnostics: [], coarse: [], picture: [], drive: [], driveFirst: [], driveSolve: [], geometryStage: [], driveStage: [], note: '' };
+  const row: Row = { sample: name, panels: '—', diagnostics: [], coarse: [], picture: [], drive: [], driveFirst: [], driveSolve: [], geometryStage: [], driveStage: [], note: '' };
   const since = client.received.length;
   await client.open(uri, text, version);
   const opened = await client.diagnostics(uri, version, since);
@@ -191,14 +212,18 @@ async function benchSample(client: LspClient, file: string): Promise<Row> {
 async function main() {
   // `node dist/bench-lsp.js lone-sphere busbar-pair` (or VOLTSCAPE_BENCH_SAMPLES=a,b) measures only those samples.
   const only = [...process.argv.slice(2), ...(process.env.VOLTSCAPE_BENCH_SAMPLES ?? '').split(',')].map((s) => s.trim().replace(/\.vscape$/, '')).filter(Boolean);
-  const files = readdirSync(join(root, 'samples'))
-    .filter((f) => f.endsWith('.vscape') && (only.length === 0 || only.includes(f.replace(/\.vscape$/, ''))))
-    .sort();
+  const wanted = (name: string) => only.length === 0 || only.includes(name);
+  const cases = readdirSync(join(root, 'samples'))
+    .filter((f) => f.endsWith('.vscape'))
+    .sort()
+    .map((f) => ({ name: f.replace(/\.vscape$/, ''), text: () => readFileSync(join(root, 'samples', f), 'utf8') }))
+    .concat([{ name: LARGE.name, text: () => largeScene().text }])
+    .filter((c) => wanted(c.name));
   const loadBefore = loadavg();
   const client = await LspClient.start(join(root, 'dist/server.js'), { solveDelay: DEBOUNCE, maxSolveTime: MAX_SOLVE_SECONDS });
   const rows: Row[] = [];
-  for (const f of files) {
-    const row = await benchSample(client, f);
+  for (const c of cases) {
+    const row = await benchSample(client, c.name, c.text());
     rows.push(row);
     process.stdout.write(`  ${row.sample} done\n`);
   }
@@ -247,7 +272,10 @@ async function main() {
   console.log(line(header));
   console.log(widths.map((w) => '-'.repeat(w)).join('-|-'));
   for (const t of table) console.log(line(t));
-  console.log('\nTargets: diagnostics p95 < 50 ms; new picture p95 < 300 ms (scenes up to 2,000 panels; the coarse picture is the first new picture); drive-only edit < 50 ms.');
+  console.log(
+    '\nTargets: diagnostics p95 < 50 ms; new picture p95 < 300 ms (scenes up to 2,000 panels; the coarse picture is the first new picture); drive-only edit < 50 ms; ' +
+      `keystroke to new picture p95 < 300 ms at 5,000 panels (${LARGE.name}: ${LARGE.from} with the mesh size that gives about ${LARGE.panels} panels).`,
+  );
   console.log(
     'Drive edits sum the stored per-electrode grids (engine/superpose.ts) where they are complete and evaluate the rest afresh; the worker builds them while idle ' +
       '(here only during the debounce), coarse level first, and skips the coarse picture once both levels are complete.',

@@ -38,7 +38,7 @@ export class LspClient {
 
   /** Starts the server and completes the initialize handshake. */
   static async start(serverPath: string, settings: Record<string, unknown> = {}, args = ['--stdio']): Promise<LspClient> {
-    const child = spawn(process.execPath, [serverPath, ...args], { stdio: ['pipe', 'pipe', 'pipe'] });
+    const child = spawn(process.execPath, [...(process.env.VOLTSCAPE_SERVER_NODE_ARGS ?? '').split(' ').filter(Boolean), serverPath, ...args], { stdio: ['pipe', 'pipe', 'pipe'] });
     child.stderr!.on('data', () => {});
     const connection = createMessageConnection(new StreamMessageReader(child.stdout!), new StreamMessageWriter(child.stdin!));
     const client = new LspClient(child, connection, settings);

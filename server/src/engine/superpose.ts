@@ -100,10 +100,11 @@ const stores = new WeakMap<Level3d, LevelStore>();
 export const MAX_STORED_VALUES = 2e7;
 
 /**
- * Points per step of a treecode build and of a direct one. The treecode splits batches from 2048
- * points over threads; builds stay below that, on one thread, since they mostly run in the background.
+ * Points per step of a treecode build and of a direct one: small steps, so that a build in the
+ * background stops soon when a job comes (and stays on one thread: the treecode splits batches
+ * over threads only from 2048 points).
  */
-const TREE_CHUNK = 1024;
+const TREE_CHUNK = 256;
 const DIRECT_CHUNK = 256;
 
 function storeOf(level: Level3d): LevelStore {

@@ -184,15 +184,16 @@ export class ServerCore {
     const version = state.document.version;
     const electrodes = electrodeLocations(state.analysis);
     const statements = state.analysis.ast.statements;
-    const geometry = geometrySignature(scene);
-    // A drive-only edit of a 3d scene asks for the coarse picture too: the worker sums what the stored
-    // per-electrode grids hold and evaluates the rest afresh, one evaluation a level, and skips the
-    // coarse level once the grids are complete (warmed while idle). The 2d engines build their grids
-    // at the first drive edit, so for them the coarse pass is skipped as before.
-    const drivesOnly = state.solved?.geometry === geometry && state.solved.level === 'full';
-    const levels: SolveLevel[] = drivesOnly && scene.space !== '3d' ? ['full'] : ['coarse', 'full'];
     const start = () => {
       this.timers.delete(uri);
+      // Worked out once the debounce is over, not on every keystroke.
+      const geometry = geometrySignature(scene);
+      // A drive-only edit of a 3d scene asks for the coarse picture too: the worker sums what the stored
+      // per-electrode grids hold and evaluates the rest afresh, one evaluation a level, and skips the
+      // coarse level once the grids are complete (warmed while idle). The 2d engines build their grids
+      // at the first drive edit, so for them the coarse pass is skipped as before.
+      const drivesOnly = state.solved?.geometry === geometry && state.solved.level === 'full';
+      const levels: SolveLevel[] = drivesOnly && scene.space !== '3d' ? ['full'] : ['coarse', 'full'];
       const seconds = this.settings.maxSolveTime;
       let timedOut = false;
       const deadline = setTimeout(() => {

@@ -28,6 +28,7 @@ import { inlayHints } from './features/inlay-hints';
 import { semanticTokens, semanticTokensLegend } from './features/semantic-tokens';
 import { readSettings } from './settings';
 import { createSolver, type Solver } from './solver';
+import { warmUpAnalysis } from './warm-up';
 
 export interface ServerOptions {
   /** Defaults to a connection made from the process arguments (--stdio, --node-ipc, --socket=). */
@@ -110,6 +111,8 @@ export function startLanguageServer(options: ServerOptions = {}): Connection {
   }
 
   connection.onInitialized(() => {
+    // Compile the language code hot before the first keystroke (warm-up.ts); messages go first.
+    warmUpAnalysis();
     if (pullConfiguration) {
       void connection.client.register(DidChangeConfigurationNotification.type, { section: 'voltscape' }).catch(() => {});
     }
