@@ -29,10 +29,13 @@ export interface Grid2d {
   dv: number;
 }
 
-/** The sources: densities τ on the elements, their images in a grounded mirror line, the kernel. */
+/**
+ * The sources: densities τ on the elements (several at once: one pass serves them all, each kernel
+ * evaluation shared), their images in a grounded mirror line, the kernel.
+ */
 export interface GridSources {
   elements: Element2d[];
-  tau: Float64Array;
+  taus: Float64Array[];
   kernel: KernelAdd;
   /** The kernel over a whole straight element in closed form, if it has one (bem2d.ts LineAdd). */
   line?: LineAdd | null;
@@ -120,7 +123,7 @@ interface Clusters {
   last: Int32Array;
   /** Arc-length offset of each element from the start of its run, and the cluster's run start element. */
   offset: Float64Array;
-  /** Proxy sets per cluster, one per order of PROXY_ORDERS up to the accuracy's order (the last the full one). */
+  /** Proxy sets per cluster, one per order of PROXY_ORDERS up to the accuracy's order (the last the full one); q: p charges per density. */
   proxies: { x: Float64Array; y: Float64Array; s: Float64Array; w: Float64Array; q: Float64Array }[][];
   /** Child items of each cluster (clusters or elements, as item ids). */
   children: number[][];
@@ -205,7 +208,7 @@ function buildClusters(elements: Element2d[], order: number): Clusters {
         sy[k] = point[1];
       }
       const w = Float64Array.from({ length: p }, (_, k) => (k % 2 === 0 ? 1 : -1) * (k === 0 || k === p - 1 ? 0.5 : 1));
-      sets.push({ x: sx, y: sy, s: ss, w, q: new Float64Array(p) });
+      sets.push({ x: sx, y: sy, s: ss, w, q: new Float64Array(0) });
     }
     proxies.push(sets);
     return c;
@@ -237,21 +240,26 @@ function geometryOf(elements: Element2d[], order: number): { rule3: Float64Array
   return g;
 }
 
-/** Sets every cluster's proxy charges for densities tau (3-point Gauss rule per element). */
-function setCharges(c: Clusters, elements: Element2d[], tau: Float64Array): void {
+/** Sets every cluster's proxy charges for densities taus (3-point Gauss rule per element): q[b·p + k]. */
+function setCharges(c: Clusters, elements: Element2d[], taus: Float64Array[]): void {
   const rule = gaussLegendre(3);
   const l = new Float64Array(64);
+  const K = taus.length;
   c.proxies.forEach((sets, k) => {
     for (const px of sets) {
-      px.q.fill(0);
+      const p = px.s.length;
+      if (px.q.length !== p * K) px.q = new Float64Array(p * K);
+      else px.q.fill(0);
       for (let j = c.first[k]; j < c.last[k]; j++) {
-        const t = tau[j];
-        if (t === 0) continue;
         const L = elements[j].length;
         for (let g = 0; g < 3; g++) {
           basis(c.offset[j] + L * rule.nodes[g], px.s, px.w, l);
-          const q = t * L * rule.weights[g];
-          for (let m = 0; m < px.q.length; m++) px.q[m] += q * l[m];
+          const lw = L * rule.weights[g];
+          for (let b = 0; b < K; b++) {
+            const q = taus[b][j] * lw;
+            if (q === 0) continue;
+            for (let m = 0; m < p; m++) px.q[b * p + m] += q * l[m];
+          }
         }
       }
     }
@@ -259,17 +267,23 @@ function setCharges(c: Clusters, elements: Element2d[], tau: Float64Array): void
 }
 
 /**
- * Adds (φ, E_u, E_v) at every cell with mask[idx] ≠ 0 into out[3·idx ..] (scene coordinates; per
- * unit ε, as the kernel). Returns the interaction counts.
+ * Adds (φ, E_u, E_v) at every cell with mask[idx] ≠ 0 into outs[b][3·idx ..] for each density
+ * taus[b] (scene coordinates; per unit ε, as the kernel). Returns the interaction counts.
  */
-export function gridEvaluate(src: GridSources, grid: Grid2d, mask: Uint8Array, out: Float64Array, accuracy: GridAccuracy = GRID_FULL): GridCounts {
-  const { elements, tau, kernel, mirror, fold } = src;
+export function gridEvaluate(src: GridSources, grid: Grid2d, mask: Uint8Array, outs: Float64Array[], accuracy: GridAccuracy = GRID_FULL): GridCounts {
+  const { elements, taus, kernel, mirror, fold } = src;
   const { nu, nv, u0, v0, du, dv } = grid;
   const counts: GridCounts = { direct: 0, gathered: 0 };
   const n = elements.length;
-  if (n === 0) return counts;
+  const K = taus.length;
+  /** Values per point: (φ, E_u, E_v) for each density. */
+  const W = 3 * K;
+  if (n === 0 || K === 0) return counts;
   const { rule3, rule5, clusters } = geometryOf(elements, accuracy.order);
-  setCharges(clusters, elements, tau);
+  setCharges(clusters, elements, taus);
+  // Elements carrying charge in any density.
+  const active = new Uint8Array(n);
+  for (const tau of taus) for (let j = 0; j < n; j++) if (tau[j] !== 0) active[j] = 1;
   const nc = clusters.first.length;
   // Items: id < n an element, id ≥ n cluster id − n; item = 2·id + (1 for the image in the mirror).
   const ids = n + nc;
@@ -301,7 +315,7 @@ export function gridEvaluate(src: GridSources, grid: Grid2d, mask: Uint8Array, o
   const expand = (item: number, outList: number[]) => {
     const id = item >> 1;
     if (id < n) {
-      if (tau[id] !== 0) outList.push(item);
+      if (active[id]) outList.push(item);
       return;
     }
     for (const child of clusters.children[id - n]) expand(2 * child + (item & 1), outList);
@@ -319,57 +333,87 @@ export function gridEvaluate(src: GridSources, grid: Grid2d, mask: Uint8Array, o
   const cellsIn = (i0: number, i1: number, j0: number, j1: number) =>
     table[j1 * (nu + 1) + i1] - table[j0 * (nu + 1) + i1] - table[j1 * (nu + 1) + i0] + table[j0 * (nu + 1) + i0];
 
-  const acc = new Float64Array(3);
-  const img = new Float64Array(3);
+  const acc = new Float64Array(W);
+  const img = new Float64Array(W);
+  const g = new Float64Array(3);
   const line = src.line ?? null;
-  /** Adds item's (φ, E_x, E_y) at solver point (x, y) into acc (images with their signs). */
+  /** Adds item's (φ, E_x, E_y) per density at solver point (x, y) into acc (images with their signs). */
   const addItem = (coded: number, x: number, y: number) => {
     const set = Math.floor(coded / stride);
     const item = coded - set * stride;
     if (item & 1) {
       const m = mirror!;
-      img[0] = img[1] = img[2] = 0;
+      img.fill(0);
       addSource(item >> 1, set, m.axis === 0 ? 2 * m.at - x : x, m.axis === 1 ? 2 * m.at - y : y, img);
-      acc[0] -= img[0];
-      acc[1] += m.axis === 0 ? img[1] : -img[1];
-      acc[2] += m.axis === 1 ? img[2] : -img[2];
+      for (let o = 0; o < W; o += 3) {
+        acc[o] -= img[o];
+        acc[o + 1] += m.axis === 0 ? img[o + 1] : -img[o + 1];
+        acc[o + 2] += m.axis === 1 ? img[o + 2] : -img[o + 2];
+      }
     } else addSource(item >> 1, set, x, y, acc);
+  };
+  /** Adds w·g (g the last unit evaluation) into into[3b ..] for the weights of each density. */
+  const spread = (into: Float64Array, weight: (b: number) => number) => {
+    for (let b = 0; b < K; b++) {
+      const w = weight(b);
+      if (w === 0) continue;
+      into[3 * b] += w * g[0];
+      into[3 * b + 1] += w * g[1];
+      into[3 * b + 2] += w * g[2];
+    }
   };
   const addSource = (id: number, set: number, x: number, y: number, into: Float64Array) => {
     if (id >= n) {
       const px = clusters.proxies[id - n][set];
-      for (let k = 0; k < px.q.length; k++) kernel(px.x[k], px.y[k], x, y, px.q[k], true, into);
+      const p = px.s.length;
+      for (let k = 0; k < p; k++) {
+        g[0] = g[1] = g[2] = 0;
+        kernel(px.x[k], px.y[k], x, y, 1, true, g);
+        if (K === 1) {
+          const q = px.q[k];
+          into[0] += q * g[0];
+          into[1] += q * g[1];
+          into[2] += q * g[2];
+        } else spread(into, (b) => px.q[b * p + k]);
+      }
       return;
     }
+    // The element's field at unit density, then scaled by each density.
     const el = elements[id];
-    const t = tau[id];
+    g[0] = g[1] = g[2] = 0;
     const dx = x - el.mx;
     const dy = y - el.my;
     const d2 = dx * dx + dy * dy;
     const l2 = el.length * el.length;
     if (d2 > NEAR3 * l2) {
       const o = id * 9;
-      kernel(rule3[o], rule3[o + 1], x, y, t * rule3[o + 2], true, into);
-      kernel(rule3[o + 3], rule3[o + 4], x, y, t * rule3[o + 5], true, into);
-      kernel(rule3[o + 6], rule3[o + 7], x, y, t * rule3[o + 8], true, into);
-    } else if (line && el.kind === 'line') line(el, x, y, t, true, into);
+      kernel(rule3[o], rule3[o + 1], x, y, rule3[o + 2], true, g);
+      kernel(rule3[o + 3], rule3[o + 4], x, y, rule3[o + 5], true, g);
+      kernel(rule3[o + 6], rule3[o + 7], x, y, rule3[o + 8], true, g);
+    } else if (line && el.kind === 'line') line(el, x, y, 1, true, g);
     else if (d2 > NEAR5 * l2) {
       const o = id * 15;
-      for (let q = 0; q < 15; q += 3) kernel(rule5[o + q], rule5[o + q + 1], x, y, t * rule5[o + q + 2], true, into);
-    } else integrateCurve(el, 0, el.length, x, y, kernel, t, true, into);
+      for (let q = 0; q < 15; q += 3) kernel(rule5[o + q], rule5[o + q + 1], x, y, rule5[o + q + 2], true, g);
+    } else integrateCurve(el, 0, el.length, x, y, kernel, 1, true, g);
+    if (K === 1) {
+      const t = taus[0][id];
+      into[0] += t * g[0];
+      into[1] += t * g[1];
+      into[2] += t * g[2];
+    } else spread(into, (b) => taus[b][id]);
   };
   /** Sum of items list[0 .. count) at scene point (u, v), scene components, into acc. */
   const sumAt = (list: number[], count: number, u: number, v: number) => {
-    acc[0] = acc[1] = acc[2] = 0;
+    acc.fill(0);
     const x = fold ? Math.abs(u) : u;
     for (let k = 0; k < count; k++) addItem(list[k], x, v);
-    if (fold && u < 0) acc[1] = -acc[1];
+    if (fold && u < 0) for (let o = 1; o < W; o += 3) acc[o] = -acc[o];
   };
 
   const farField: FarField<Nodes | Expansion> =
     src.logScale !== undefined
-      ? (expansionField(accuracy.terms, src.logScale, elements, tau, rule3, rule5, clusters, cx, cy, mirror, stride) as FarField<Nodes | Expansion>)
-      : (interpolationField(accuracy.order, sumAt, acc) as FarField<Nodes | Expansion>);
+      ? (expansionField(accuracy.terms, src.logScale, elements, taus, rule3, rule5, clusters, cx, cy, mirror, stride) as FarField<Nodes | Expansion>)
+      : (interpolationField(accuracy.order, W, sumAt, acc) as FarField<Nodes | Expansion>);
   const sep2 = accuracy.separation * accuracy.separation;
   const clusterSep2 = CLUSTER_SEPARATION * CLUSTER_SEPARATION;
 
@@ -394,9 +438,12 @@ export function gridEvaluate(src: GridSources, grid: Grid2d, mask: Uint8Array, o
           sumAt(units, units.length, u, v);
           counts.direct += units.length;
           if (parent) farField.addAt(parent, u, v, acc);
-          out[3 * idx] += acc[0];
-          out[3 * idx + 1] += acc[1];
-          out[3 * idx + 2] += acc[2];
+          for (let b = 0; b < K; b++) {
+            const out = outs[b];
+            out[3 * idx] += acc[3 * b];
+            out[3 * idx + 1] += acc[3 * b + 1];
+            out[3 * idx + 2] += acc[3 * b + 2];
+          }
         }
       }
       return;
@@ -420,7 +467,7 @@ export function gridEvaluate(src: GridSources, grid: Grid2d, mask: Uint8Array, o
     while (stack.length > 0) {
       const item = stack.pop()!;
       const id = item >> 1;
-      if (id < n && tau[id] === 0) continue;
+      if (id < n && !active[id]) continue;
       const ex = Math.max(ra - cx[item], 0, cx[item] - rb);
       const ey = Math.max(va - cy[item], 0, cy[item] - vb);
       const d2 = ex * ex + ey * ey;
@@ -465,19 +512,17 @@ export function gridEvaluate(src: GridSources, grid: Grid2d, mask: Uint8Array, o
 
 // ---- interpolation points (any kernel) ----
 
-function interpolationField(p: number, sumAt: (list: number[], count: number, u: number, v: number) => void, acc: Float64Array): FarField<Nodes> {
+function interpolationField(p: number, width: number, sumAt: (list: number[], count: number, u: number, v: number) => void, acc: Float64Array): FarField<Nodes> {
   return {
-    make: (ua, ub, cellsU, va, vb, cellsV) => makeNodes(ua, ub, cellsU, va, vb, cellsV, p),
+    make: (ua, ub, cellsU, va, vb, cellsV) => makeNodes(ua, ub, cellsU, va, vb, cellsV, p, width),
     carry: carryDown,
     gather(t, list, count) {
       const { pu, pv, nu, nv, values } = t;
       for (let a = 0; a < pu; a++) {
         for (let b = 0; b < pv; b++) {
           sumAt(list, count, nu[a], nv[b]);
-          const o = 3 * (a * pv + b);
-          values[o] += acc[0];
-          values[o + 1] += acc[1];
-          values[o + 2] += acc[2];
+          const o = width * (a * pv + b);
+          for (let c = 0; c < width; c++) values[o + c] += acc[c];
         }
       }
     },
@@ -502,31 +547,41 @@ interface Expansion {
   zy: number;
   /** Half-diagonal of the block's cell centres. */
   reach: number;
+  /** Coefficients per density: index b·(terms + 1) + k. */
   re: Float64Array;
   im: Float64Array;
 }
 
-function expansionField(terms: number, scale: number, elements: Element2d[], tau: Float64Array, rule3: Float64Array, rule5: Float64Array, clusters: Clusters, cx: Float64Array, cy: Float64Array, mirror: Mirror | null, stride: number): FarField<Expansion> {
+function expansionField(terms: number, scale: number, elements: Element2d[], taus: Float64Array[], rule3: Float64Array, rule5: Float64Array, clusters: Clusters, cx: Float64Array, cy: Float64Array, mirror: Mirror | null, stride: number): FarField<Expansion> {
   const inv2pi = 1 / (2 * Math.PI);
-  const addSource = (t: Expansion, xs: number, ys: number, q: number) => {
+  const K = taus.length;
+  const T = terms + 1;
+  const qs = new Float64Array(K);
+  /** Adds sources at (xs, ys) with charge qs[b]·sign for each density b. */
+  const addSource = (t: Expansion, xs: number, ys: number, sign: number) => {
     const ax = xs - t.zx, ay = ys - t.zy;
     const a2 = ax * ax + ay * ay;
-    const c = q * inv2pi;
-    t.re[0] -= 0.5 * c * Math.log(a2 / (scale * scale));
+    const log = 0.5 * Math.log(a2 / (scale * scale));
     // 1/a, then its powers.
     const ix = ax / a2, iy = -ay / a2;
-    let px = ix, py = iy;
-    for (let k = 1; k <= terms; k++) {
-      t.re[k] += (c / k) * px;
-      t.im[k] += (c / k) * py;
-      const nx = px * ix - py * iy;
-      py = px * iy + py * ix;
-      px = nx;
+    for (let b = 0; b < K; b++) {
+      const c = sign * qs[b] * inv2pi;
+      if (c === 0) continue;
+      const o = b * T;
+      t.re[o] -= c * log;
+      let px = ix, py = iy;
+      for (let k = 1; k <= terms; k++) {
+        t.re[o + k] += (c / k) * px;
+        t.im[o + k] += (c / k) * py;
+        const nx = px * ix - py * iy;
+        py = px * iy + py * ix;
+        px = nx;
+      }
     }
   };
   return {
     make(ua, ub, _cu, va, vb) {
-      return { zx: 0.5 * (ua + ub), zy: 0.5 * (va + vb), reach: 0.5 * Math.hypot(ub - ua, vb - va), re: new Float64Array(terms + 1), im: new Float64Array(terms + 1) };
+      return { zx: 0.5 * (ua + ub), zy: 0.5 * (va + vb), reach: 0.5 * Math.hypot(ub - ua, vb - va), re: new Float64Array(K * T), im: new Float64Array(K * T) };
     },
     carry(parent, child) {
       const re = child.re, im = child.im;
@@ -534,10 +589,12 @@ function expansionField(terms: number, scale: number, elements: Element2d[], tau
       im.set(parent.im);
       // Σ c_k (z − P)^k = Σ d_k (z − C)^k: repeated synthetic division by t = C − P.
       const tx = child.zx - parent.zx, ty = child.zy - parent.zy;
-      for (let i = 0; i < terms; i++) {
-        for (let k = terms - 1; k >= i; k--) {
-          re[k] += tx * re[k + 1] - ty * im[k + 1];
-          im[k] += tx * im[k + 1] + ty * re[k + 1];
+      for (let o = 0; o < K * T; o += T) {
+        for (let i = 0; i < terms; i++) {
+          for (let k = o + terms - 1; k >= o + i; k--) {
+            re[k] += tx * re[k + 1] - ty * im[k + 1];
+            im[k] += tx * im[k + 1] + ty * re[k + 1];
+          }
         }
       }
     },
@@ -548,16 +605,21 @@ function expansionField(terms: number, scale: number, elements: Element2d[], tau
         const unit = list[i] - set * stride;
         const j = unit >> 1;
         const image = (unit & 1) === 1;
-        const reflect = (x: number, y: number, q: number) => {
+        const sign = image ? -1 : 1;
+        const place = (x: number, y: number) => {
           if (image) {
             if (mirror!.axis === 0) x = 2 * mirror!.at - x;
             else y = 2 * mirror!.at - y;
           }
-          addSource(t, x, y, image ? -q : q);
+          addSource(t, x, y, sign);
         };
         if (j >= n) {
           const px = clusters.proxies[j - n][set];
-          for (let k = 0; k < px.q.length; k++) reflect(px.x[k], px.y[k], px.q[k]);
+          const p = px.s.length;
+          for (let k = 0; k < p; k++) {
+            for (let b = 0; b < K; b++) qs[b] = px.q[b * p + k];
+            place(px.x[k], px.y[k]);
+          }
           continue;
         }
         // The 3-point rule beyond 4 element lengths of every cell, else the 5-point one (see NEAR3).
@@ -567,37 +629,42 @@ function expansionField(terms: number, scale: number, elements: Element2d[], tau
         const rule = three ? rule3 : rule5;
         const points = three ? 3 : 5;
         for (let m = 0; m < points; m++) {
-          const b = (j * points + m) * 3;
-          reflect(rule[b], rule[b + 1], tau[j] * rule[b + 2]);
+          const o = (j * points + m) * 3;
+          for (let b = 0; b < K; b++) qs[b] = taus[b][j] * rule[o + 2];
+          place(rule[o], rule[o + 1]);
         }
       }
     },
     addAt(t, u, v, acc) {
       const zx = u - t.zx, zy = v - t.zy;
       const re = t.re, im = t.im;
-      let wr = re[terms], wi = im[terms];
-      let dr = terms * re[terms], di = terms * im[terms];
-      for (let k = terms - 1; k >= 0; k--) {
-        const r = wr * zx - wi * zy + re[k];
-        wi = wr * zy + wi * zx + im[k];
-        wr = r;
-        if (k >= 1) {
-          const s = dr * zx - di * zy + k * re[k];
-          di = dr * zy + di * zx + k * im[k];
-          dr = s;
+      for (let b = 0; b < K; b++) {
+        const o = b * T;
+        let wr = re[o + terms], wi = im[o + terms];
+        let dr = terms * re[o + terms], di = terms * im[o + terms];
+        for (let k = terms - 1; k >= 0; k--) {
+          const r = wr * zx - wi * zy + re[o + k];
+          wi = wr * zy + wi * zx + im[o + k];
+          wr = r;
+          if (k >= 1) {
+            const s = dr * zx - di * zy + k * re[o + k];
+            di = dr * zy + di * zx + k * im[o + k];
+            dr = s;
+          }
         }
+        acc[3 * b] += wr;
+        acc[3 * b + 1] -= dr;
+        acc[3 * b + 2] += di;
       }
-      acc[0] += wr;
-      acc[1] -= dr;
-      acc[2] += di;
     },
   };
 }
 
-/** Interpolation points of a block (tensor product) and the values gathered there (3 per point). */
+/** Interpolation points of a block (tensor product) and the values gathered there (`width` per point). */
 interface Nodes {
   pu: number;
   pv: number;
+  width: number;
   nu: Float64Array;
   nv: Float64Array;
   wu: Float64Array;
@@ -627,10 +694,10 @@ function sidePoints(a: number, b: number, cells: number, p: number): { x: Float6
   return { x, w };
 }
 
-function makeNodes(ua: number, ub: number, cellsU: number, va: number, vb: number, cellsV: number, p: number): Nodes {
+function makeNodes(ua: number, ub: number, cellsU: number, va: number, vb: number, cellsV: number, p: number, width: number): Nodes {
   const su = sidePoints(ua, ub, cellsU, p);
   const sv = sidePoints(va, vb, cellsV, p);
-  return { pu: su.x.length, pv: sv.x.length, nu: su.x, nv: sv.x, wu: su.w, wv: sv.w, values: new Float64Array(3 * su.x.length * sv.x.length) };
+  return { pu: su.x.length, pv: sv.x.length, width, nu: su.x, nv: sv.x, wu: su.w, wv: sv.w, values: new Float64Array(width * su.x.length * sv.x.length) };
 }
 
 /** Lagrange basis values at x over points s with barycentric weights w, into out (length of s). */
@@ -657,38 +724,50 @@ const lv = new Float64Array(64);
 function interpolateInto(n: Nodes, u: number, v: number, acc: Float64Array): void {
   basis(u, n.nu, n.wu, lu);
   basis(v, n.nv, n.wv, lv);
-  const { pu, pv, values } = n;
-  let f0 = 0, f1 = 0, f2 = 0;
+  const { pu, pv, values, width } = n;
+  if (width === 3) {
+    let f0 = 0, f1 = 0, f2 = 0;
+    for (let a = 0; a < pu; a++) {
+      const la = lu[a];
+      if (la === 0) continue;
+      let g0 = 0, g1 = 0, g2 = 0;
+      for (let b = 0; b < pv; b++) {
+        const lb = lv[b];
+        const o = 3 * (a * pv + b);
+        g0 += lb * values[o];
+        g1 += lb * values[o + 1];
+        g2 += lb * values[o + 2];
+      }
+      f0 += la * g0;
+      f1 += la * g1;
+      f2 += la * g2;
+    }
+    acc[0] += f0;
+    acc[1] += f1;
+    acc[2] += f2;
+    return;
+  }
   for (let a = 0; a < pu; a++) {
     const la = lu[a];
     if (la === 0) continue;
-    let g0 = 0, g1 = 0, g2 = 0;
     for (let b = 0; b < pv; b++) {
-      const lb = lv[b];
-      const o = 3 * (a * pv + b);
-      g0 += lb * values[o];
-      g1 += lb * values[o + 1];
-      g2 += lb * values[o + 2];
+      const w = la * lv[b];
+      if (w === 0) continue;
+      const o = width * (a * pv + b);
+      for (let c = 0; c < width; c++) acc[c] += w * values[o + c];
     }
-    f0 += la * g0;
-    f1 += la * g1;
-    f2 += la * g2;
   }
-  acc[0] += f0;
-  acc[1] += f1;
-  acc[2] += f2;
 }
 
 /** Sets the child's values to the parent's interpolant at the child's points. */
-const carried = new Float64Array(3);
-
 function carryDown(parent: Nodes, child: Nodes): void {
-  const acc = carried;
+  const width = child.width;
+  const acc = new Float64Array(width);
   for (let a = 0; a < child.pu; a++) {
     for (let b = 0; b < child.pv; b++) {
-      acc[0] = acc[1] = acc[2] = 0;
+      acc.fill(0);
       interpolateInto(parent, child.nu[a], child.nv[b], acc);
-      child.values.set(acc, 3 * (a * child.pv + b));
+      child.values.set(acc, width * (a * child.pv + b));
     }
   }
 }

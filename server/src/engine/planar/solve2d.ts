@@ -688,25 +688,28 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
     let basis = bySlice.get(key);
     if (basis && (basis.outside.length !== outside.length || basis.outside.some((c, i) => c !== outside[i]))) basis = undefined;
     const n = level.elements.length;
-    const valuesOf = (tau: Float64Array, withFree: boolean) => {
-      const all = gridValues(level.elements, tau, withFree ? setup.free : [], 0, grid, mask);
-      const out = new Float64Array(3 * outside.length);
-      outside.forEach((idx, m) => out.set(all.subarray(3 * idx, 3 * idx + 3), 3 * m));
-      return out;
-    };
+    /** The grid values at the outside cells of each density (free charges with the flagged ones), in one pass. */
+    const valuesOf = (taus: Float64Array[], withFree: boolean[]) =>
+      gridValues(level.elements, taus, withFree, 0, grid, mask).map((all) => {
+        const out = new Float64Array(3 * outside.length);
+        outside.forEach((idx, m) => out.set(all.subarray(3 * idx, 3 * idx + 3), 3 * m));
+        return out;
+      });
+    const freeStale = basis?.free?.key !== freeSignature;
     if (!basis) {
+      if (options.isCancelled?.()) return null;
       const f = level.factored;
-      const vectors: (Float64Array | null)[] = [];
-      for (let e = 0; e < k; e++) {
-        if (options.isCancelled?.()) return null;
-        vectors.push(valuesOf(f.solved[e].subarray(0, n), false));
-      }
-      vectors.push(f.solved.length > k ? valuesOf(f.solved[k].subarray(0, n), false) : null);
-      basis = { outside: [...outside], vectors, free: null as { key: string; values: Float64Array } | null };
+      const taus = f.solved.slice(0, k).map((x) => x.subarray(0, n));
+      const net = f.solved.length > k;
+      if (net) taus.push(f.solved[k].subarray(0, n));
+      taus.push(level.units[k]);
+      const values = valuesOf(taus, taus.map((_, b) => b === taus.length - 1));
+      const vectors: (Float64Array | null)[] = values.slice(0, k);
+      vectors.push(net ? values[k] : null);
+      basis = { outside: [...outside], vectors, free: { key: freeSignature, values: values[values.length - 1] } };
       bySlice.set(key, basis);
       while (bySlice.size > 8) bySlice.delete(bySlice.keys().next().value as string);
-    }
-    if (basis.free?.key !== freeSignature) basis.free = { key: freeSignature, values: valuesOf(level.units[k], true) };
+    } else if (freeStale) basis.free = { key: freeSignature, values: valuesOf([level.units[k]], [true])[0] };
     return basis;
   }
 
@@ -715,8 +718,8 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
    * densities tau by target-side interpolation (grid2d.ts), the free charges and the potential at
    * infinity summed directly.
    */
-  function gridValues(elements: Element2d[], tau: Float64Array, free: FreeSource[], infinity: number, grid: Grid2d, mask: Uint8Array): Float64Array {
-    const out = new Float64Array(3 * grid.nu * grid.nv);
+  function gridValues(elements: Element2d[], taus: Float64Array[], withFree: boolean[], infinity: number, grid: Grid2d, mask: Uint8Array): Float64Array[] {
+    const outs = taus.map(() => new Float64Array(3 * grid.nu * grid.nv));
     const acc = new Float64Array(3);
     const fold = setup.space === 'axisymmetric';
     for (let idx = 0; idx < mask.length; idx++) {
@@ -727,14 +730,20 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
       const x = fold ? Math.abs(u) : u;
       acc[0] = infinity;
       acc[1] = acc[2] = 0;
-      for (const f of free) f.add(x, y, true, acc, false);
-      out[3 * idx] = acc[0];
-      out[3 * idx + 1] = fold && u < 0 ? -acc[1] : acc[1];
-      out[3 * idx + 2] = acc[2];
+      for (const f of setup.free) f.add(x, y, true, acc, false);
+      outs.forEach((out, b) => {
+        if (!withFree[b]) {
+          out[3 * idx] = infinity;
+          return;
+        }
+        out[3 * idx] = acc[0];
+        out[3 * idx + 1] = fold && u < 0 ? -acc[1] : acc[1];
+        out[3 * idx + 2] = acc[2];
+      });
     }
     const accuracy = options.level === 'coarse' ? GRID_COARSE : GRID_FULL;
-    gridEvaluate({ elements, tau, kernel: setup.gridKernel ?? setup.kernel, line: setup.line, mirror: setup.mirror, fold, logScale: setup.space === 'planar' ? setup.scale : undefined }, grid, mask, out, accuracy);
-    return out;
+    gridEvaluate({ elements, taus, kernel: setup.gridKernel ?? setup.kernel, line: setup.line, mirror: setup.mirror, fold, logScale: setup.space === 'planar' ? setup.scale : undefined }, grid, mask, outs, accuracy);
+    return outs;
   }
 
   function sliceGrid(scene: Scene2d, setup: Space2d, level: Level, d: Driven, s: Scene2d['slices'][number]): SliceResult | null {
@@ -800,7 +809,7 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
         put(outside[m], phi + g[3 * m], eu + g[3 * m + 1], ev + g[3 * m + 2]);
       }
     } else {
-      const values = gridValues(level.elements, d.tau, setup.free, setup.infinityUnknown ? d.infinity : 0, grid, mask);
+      const [values] = gridValues(level.elements, [d.tau], [true], setup.infinityUnknown ? d.infinity : 0, grid, mask);
       for (const idx of outside) put(idx, values[3 * idx], values[3 * idx + 1], values[3 * idx + 2]);
     }
     const outlines: Outline[] = [];
