@@ -162,13 +162,21 @@ function productRow(n: number, A: Float64Array, i: number, x: Float64Array, y: F
   y[i] = s;
 }
 
+/**
+ * Dense GMRES stops at this relative residual by default. At 1e-6, on the 3d samples' coarse meshes
+ * (900-1,400 panels, two-level preconditioner), capacitances differ from a 1e-11 solve by at most
+ * 1e-7 relative and peak densities by at most 1e-5, within the panel integrals' own accuracy
+ * (kernels/triangle.ts: 3e-6 and 2.5e-5) and far below the mesh error; 9 iterations instead of 11
+ * at 1e-7 (measured here). (Earlier 1e-7, chosen when entries were good to 2e-7.)
+ */
+export const GMRES_TOLERANCE = 1e-6;
+
 export interface LinearSolveOptions {
   /** Warm starts, one per right-hand side (iterative solvers; direct ones ignore them). */
   initial?: (Float64Array | null | undefined)[];
   /**
-   * Relative residual at which iterative solvers stop (default 1e-7: on spheres of 2,000 panels the
-   * capacitance then differs from a 1e-11 solve by at most 1e-9 relative, far below the mesh error;
-   * 28 iterations at 1e-9 became 21).
+   * Relative residual at which iterative solvers stop (each solver has its default: the dense
+   * GMRES's is GMRES_TOLERANCE).
    */
   tolerance?: number;
   /** Polled between steps; when it returns true the solve stops and returns null. */
@@ -281,7 +289,7 @@ export function gmresSolver(op: LinearOperator, name: string): LinearSolver {
       // All right-hand sides in lockstep: one pass of the operator per round serves them all.
       const results = gmresMany(batchOf(op), rhs, {
         initial: options?.initial,
-        tolerance: options?.tolerance ?? 1e-7,
+        tolerance: options?.tolerance ?? GMRES_TOLERANCE,
         precondition,
         preconditionMany: op.precondition ? op.preconditionMany?.bind(op) : undefined,
         isCancelled: options?.isCancelled,
