@@ -351,22 +351,66 @@ interface SurfacePeak {
  */
 const thinStored = new WeakMap<Factored, { vectors: (Float64Array | null)[]; free: { key: string; values: Float64Array } | null }>();
 
-/** [Ex, Ey] of the principal-value field at every element (0 at closed ones) for densities tau. */
-function thinFields(setup: Space2d, elements: Element2d[], far: Float64Array, tau: Float64Array, withFree: boolean): Float64Array {
-  const st: Space2d = { ...setup, infinityUnknown: false, free: withFree ? setup.free : [] };
-  const d: Driven = { potentials: [], charges: [], tau, infinity: 0, singular: false, alpha: 0 };
-  const out = new Float64Array(2 * elements.length);
-  const plus = new Float64Array(3);
-  const minus = new Float64Array(3);
+/**
+ * [Ex, Ey] of the principal-value field at every element (0 at closed ones) for each density of taus
+ * (free charges added to those flagged in withFree), in one pass: each element's field at unit density
+ * is evaluated once per point and scaled by every density.
+ */
+function thinFields(setup: Space2d, elements: Element2d[], far: Float64Array, taus: Float64Array[], withFree: boolean[]): Float64Array[] {
+  const K = taus.length;
+  const outs = taus.map(() => new Float64Array(2 * elements.length));
+  const plus = new Float64Array(3 * K);
+  const minus = new Float64Array(3 * K);
   elements.forEach((el, i) => {
     if (!el.thin) return;
     const delta = 1e-3 * el.length;
-    fieldAt(st, elements, far, d, el.mx + delta * el.nx, el.my + delta * el.ny, plus);
-    fieldAt(st, elements, far, d, el.mx - delta * el.nx, el.my - delta * el.ny, minus);
-    out[2 * i] = 0.5 * (plus[1] + minus[1]);
-    out[2 * i + 1] = 0.5 * (plus[2] + minus[2]);
+    fieldsAt(setup, elements, far, taus, withFree, el.mx + delta * el.nx, el.my + delta * el.ny, plus);
+    fieldsAt(setup, elements, far, taus, withFree, el.mx - delta * el.nx, el.my - delta * el.ny, minus);
+    for (let b = 0; b < K; b++) {
+      outs[b][2 * i] = 0.5 * (plus[3 * b + 1] + minus[3 * b + 1]);
+      outs[b][2 * i + 1] = 0.5 * (plus[3 * b + 2] + minus[3 * b + 2]);
+    }
   });
-  return out;
+  return outs;
+}
+
+/** As fieldAt (no potential at infinity) for several densities at once: (φ, E) of density b at acc[3b ..]. */
+function fieldsAt(setup: Space2d, elements: Element2d[], far: Float64Array, taus: Float64Array[], withFree: boolean[], x: number, y: number, acc: Float64Array): void {
+  acc.fill(0);
+  const K = taus.length;
+  const g = new Float64Array(3);
+  const mirror = setup.mirror;
+  const add = (j: number, px: number, py: number, sign: number, flipX: number, flipY: number) => {
+    g[0] = g[1] = g[2] = 0;
+    const el = elements[j];
+    if (Math.hypot(px - el.mx, py - el.my) > FAR_RATIO * el.length) {
+      for (let q = 0; q < FAR_RULE; q++) {
+        const o = (j * FAR_RULE + q) * 3;
+        setup.kernel(far[o], far[o + 1], px, py, far[o + 2], true, g);
+      }
+    } else if (setup.line && el.kind === 'line') setup.line(el, px, py, 1, true, g);
+    else integrateCurve(el, 0, el.length, px, py, setup.kernel, 1, true, g);
+    for (let b = 0; b < K; b++) {
+      const t = taus[b][j];
+      if (t === 0) continue;
+      acc[3 * b] += sign * t * g[0];
+      acc[3 * b + 1] += flipX * t * g[1];
+      acc[3 * b + 2] += flipY * t * g[2];
+    }
+  };
+  for (let j = 0; j < elements.length; j++) {
+    add(j, x, y, 1, 1, 1);
+    // Images of opposite sign: φ_img(p) = −φ(Mp), E_img(p) = −M·E(Mp).
+    if (mirror) add(j, mirror.axis === 0 ? 2 * mirror.at - x : x, mirror.axis === 1 ? 2 * mirror.at - y : y, -1, mirror.axis === 0 ? 1 : -1, mirror.axis === 1 ? 1 : -1);
+  }
+  const free = new Float64Array(3);
+  for (const f of setup.free) f.add(x, y, true, free, false);
+  for (let b = 0; b < K; b++) {
+    if (!withFree[b]) continue;
+    acc[3 * b] += free[0];
+    acc[3 * b + 1] += free[1];
+    acc[3 * b + 2] += free[2];
+  }
 }
 
 function surfacePeaks(setup: Space2d, level: Level, d: Driven, k: number, superpose: { freeSignature: string; eps: number } | null = null): SurfacePeak[] {
@@ -381,11 +425,17 @@ function surfacePeaks(setup: Space2d, level: Level, d: Driven, k: number, superp
     const n = elements.length;
     let s = thinStored.get(f);
     if (!s) {
-      const vectors: (Float64Array | null)[] = f.solved.slice(0, k).map((x) => thinFields(setup, elements, far, x.subarray(0, n), false));
-      vectors.push(f.solved.length > k ? thinFields(setup, elements, far, f.solved[k].subarray(0, n), false) : null);
-      thinStored.set(f, (s = { vectors, free: null }));
+      // Every unit solution and the free charges in one pass.
+      const taus = f.solved.slice(0, k).map((x) => x.subarray(0, n));
+      const net = f.solved.length > k;
+      if (net) taus.push(f.solved[k].subarray(0, n));
+      taus.push(level.units[k]);
+      const fields = thinFields(setup, elements, far, taus, taus.map((_, b) => b === taus.length - 1));
+      const vectors: (Float64Array | null)[] = fields.slice(0, k);
+      vectors.push(net ? fields[k] : null);
+      thinStored.set(f, (s = { vectors, free: { key: superpose.freeSignature, values: fields[fields.length - 1] } }));
     }
-    if (s.free?.key !== superpose.freeSignature) s.free = { key: superpose.freeSignature, values: thinFields(setup, elements, far, level.units[k], true) };
+    if (s.free?.key !== superpose.freeSignature) s.free = { key: superpose.freeSignature, values: thinFields(setup, elements, far, [level.units[k]], [true])[0] };
     // Σ_e V_e·E_e + α·E_net/(ε·scale) + E_free.
     const weights = [...d.potentials, d.alpha / (superpose.eps * setup.scale)];
     summed = Float64Array.from(s.free.values);
