@@ -810,15 +810,17 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
     const fieldV = new Float32Array(size);
     const fieldMagnitude = new Float32Array(size);
     const inside = new Int16Array(size);
-    const a = new Float64Array(3);
     const outside: number[] = [];
+    const point = [0, 0];
     for (let j = 0; j < nv; j++) {
       if ((j & 7) === 0 && options.isCancelled?.()) return null;
       for (let i = 0; i < nu; i++) {
         const u = u0 + (i + 0.5) * du;
         const v = v0 + (j + 0.5) * dv;
         const idx = j * nu + i;
-        const e = insideElectrode(scene, [u, v]);
+        point[0] = u;
+        point[1] = v;
+        const e = insideElectrode(scene, point);
         inside[idx] = e;
         if (e >= 0) {
           potential[idx] = d.potentials[e];
