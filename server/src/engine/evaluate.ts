@@ -102,10 +102,13 @@ export function evaluateSlices(
   grid: GridEvaluator = FULL_GRID,
 ): SliceResult[] | null {
   const out: SliceResult[] = [];
+  // One treecode for all slices that use it (built on first need: its tree and moments cost about
+  // as much as evaluating a coarse picture's grid).
+  let treecode: FieldEvaluator | null = null;
   for (const slice of scene.slices) {
     const { outside, centre, store, shift, result, potential, fieldMagnitude } = sliceLayout(scene, slice, maxGridCells, potentials, diagnostics);
     const p = [0, 0, 0];
-    const tree = outside.length * state.sys.n > grid.above ? panelTreecode(state) : null;
+    const tree = outside.length * state.sys.n > grid.above ? (treecode ??= panelTreecode(state)) : null;
     if (tree) {
       // Panels by the treecode, free charges directly (a state with the panels left out).
       const pts = new Float64Array(3 * outside.length);
