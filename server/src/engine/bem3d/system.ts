@@ -31,6 +31,9 @@ export interface Bem3dSystem {
  * the matrix row at the same point is computed (one kernel pass gives both), for the thin panels
  * whose collocation point is their centroid.
  */
+/** Most numbers kept in ThinRows (8 bytes each: 64 MB); a larger system keeps none. */
+export const THIN_ROWS_MAX_ENTRIES = 8e6;
+
 export interface ThinRows {
   panels: Int32Array;
   rows: Float64Array;
@@ -65,11 +68,16 @@ export function assembleDense(sys: Bem3dSystem, isCancelled?: () => boolean): Fl
   const p = sys.points;
   const { mesh, images } = sys;
   const c = mesh.centroid;
-  const thin: number[] = [];
-  const others: number[] = [];
+  let thin: number[] = [];
+  let others: number[] = [];
   for (let i = 0; i < n; i++) {
     if (mesh.thin[i] && p[3 * i] === c[3 * i] && p[3 * i + 1] === c[3 * i + 1] && p[3 * i + 2] === c[3 * i + 2]) thin.push(i);
     else others.push(i);
+  }
+  if (thin.length * n > THIN_ROWS_MAX_ENTRIES) {
+    // Too large to keep beside the matrix: surface fields fall back to sums over all panels.
+    thin = [];
+    others = Array.from({ length: n }, (_, i) => i);
   }
   const thinRows: ThinRows = { panels: Int32Array.from(thin), rows: new Float64Array(thin.length * n) };
   const I = images.length;
