@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { preparePanels } from '../../server/src/engine/kernels/triangle';
 import { panelEntrySource, panelExtent } from '../../server/src/engine/fast/panel-entries';
-import { buildFastSolver } from '../../server/src/engine/fast/fast-solver';
+import { buildFastSolver, productHere } from '../../server/src/engine/fast/fast-solver';
 import { denseMatrix, denseMatvec, denseSolve } from '../../server/src/engine/fast/direct';
 import { buildClusterTree } from '../../server/src/engine/fast/cluster-tree';
 import { acaBlock } from '../../server/src/engine/fast/aca';
@@ -171,5 +171,21 @@ describe('two-level preconditioner', () => {
       expect(many[k].info.iterations).toBe(one.info.iterations);
       expect(relNorm(many[k].x, one.x)).toBeLessThan(1e-12);
     });
+  });
+});
+
+describe('the product of several stacked vectors', () => {
+  it('equals one product per vector for 1 to 6 vectors (groups of four, two and one)', () => {
+    const N = fast.H.size;
+    for (let K = 1; K <= 6; K++) {
+      const xs = Float64Array.from({ length: K * N }, (_, i) => Math.sin(0.7 * i) + 0.2);
+      const ys = new Float64Array(K * N);
+      productHere(fast.H, xs, ys, K);
+      for (let v = 0; v < K; v++) {
+        const y = new Float64Array(N);
+        productHere(fast.H, xs.slice(v * N, (v + 1) * N), y, 1);
+        expect(relNorm(ys.slice(v * N, (v + 1) * N), y)).toBeLessThan(1e-13);
+      }
+    }
   });
 });

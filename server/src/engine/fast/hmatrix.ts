@@ -193,14 +193,17 @@ export function assembleHMatrix(src: EntrySource, tree: ClusterTree, options: HO
 
 /**
  * ys[v·n + i] += Σ_j A_ij · xs[v·n + j] over blocks [b0, b1) of one pack, for the K vectors stacked
- * in xs and ys (tree order). One pass over the stored numbers serves all K vectors, two at a time
- * in the inner loops (each stored number is loaded once per pair).
+ * in xs and ys (tree order). One pass over the stored numbers serves all K vectors, four or two at
+ * a time in the inner loops (each stored number is loaded once per group).
  */
 export function packProduct(p: BlockPack, b0: number, b1: number, xs: Float64Array, ys: Float64Array, K: number, n: number): void {
-  for (let v = 0; v < K; v += 2) {
-    if (v + 1 < K) packProductPair(p, b0, b1, xs, ys, v * n, (v + 1) * n);
-    else packProductOne(p, b0, b1, xs, ys, v * n);
+  let v = 0;
+  for (; v + 3 < K; v += 4) packProductQuad(p, b0, b1, xs, ys, v * n, n);
+  if (v + 1 < K) {
+    packProductPair(p, b0, b1, xs, ys, v * n, (v + 1) * n);
+    v += 2;
   }
+  if (v < K) packProductOne(p, b0, b1, xs, ys, v * n);
 }
 
 /** One vector at offset o of xs and ys. */
@@ -223,6 +226,54 @@ function packProductOne(p: BlockPack, b0: number, b1: number, xs: Float64Array, 
         let t = 0;
         for (let k = 0; k < nc; k++) t += A[ov + k] * xs[c0 + k];
         for (let a = 0; a < m; a++) ys[r0 + a] += t * A[ou + a];
+      }
+    }
+  }
+}
+
+/** Four vectors at offsets o, o + n, o + 2n, o + 3n of xs and ys, in one pass. */
+function packProductQuad(p: BlockPack, b0: number, b1: number, xs: Float64Array, ys: Float64Array, o: number, n: number): void {
+  const H = p.heads, A = p.values;
+  for (let b = b0; b < b1; b++) {
+    const h = 6 * b;
+    const r0 = H[h], m = H[h + 1], c0 = H[h + 2], nc = H[h + 3], rank = H[h + 4], off = H[h + 5];
+    const x1 = o + c0, x2 = x1 + n, x3 = x2 + n, x4 = x3 + n;
+    const y1 = o + r0, y2 = y1 + n, y3 = y2 + n, y4 = y3 + n;
+    if (rank < 0) {
+      for (let a = 0; a < m; a++) {
+        const ro = off + a * nc;
+        let s1 = 0, s2 = 0, s3 = 0, s4 = 0;
+        for (let k = 0; k < nc; k++) {
+          const e = A[ro + k];
+          s1 += e * xs[x1 + k];
+          s2 += e * xs[x2 + k];
+          s3 += e * xs[x3 + k];
+          s4 += e * xs[x4 + k];
+        }
+        ys[y1 + a] += s1;
+        ys[y2 + a] += s2;
+        ys[y3 + a] += s3;
+        ys[y4 + a] += s4;
+      }
+    } else {
+      const vOff = off + rank * m;
+      for (let l = 0; l < rank; l++) {
+        const ov = vOff + l * nc, ou = off + l * m;
+        let t1 = 0, t2 = 0, t3 = 0, t4 = 0;
+        for (let k = 0; k < nc; k++) {
+          const e = A[ov + k];
+          t1 += e * xs[x1 + k];
+          t2 += e * xs[x2 + k];
+          t3 += e * xs[x3 + k];
+          t4 += e * xs[x4 + k];
+        }
+        for (let a = 0; a < m; a++) {
+          const u = A[ou + a];
+          ys[y1 + a] += t1 * u;
+          ys[y2 + a] += t2 * u;
+          ys[y3 + a] += t3 * u;
+          ys[y4 + a] += t4 * u;
+        }
       }
     }
   }
