@@ -196,6 +196,9 @@ function closedForm(P: Panels, j: number, x: number, y: number, z: number): void
   const nx = P.normal[3 * j], ny = P.normal[3 * j + 1], nz = P.normal[3 * j + 2];
   const d = nx * (x - v[o]) + ny * (y - v[o + 1]) + nz * (z - v[o + 2]);
   const ad = Math.abs(d);
+  // In the panel's plane up to rounding (coplanar panels of a flat face): the β terms, which come
+  // with the factor |d| in I and are left out of ∇I there (principal value), are skipped.
+  const offPlane = ad > 1e-12 * P.diameter[j];
   const tiny = 1e-24 * P.diameter[j] * P.diameter[j];
   const ax0 = v[o] - x, ay0 = v[o + 1] - y, az0 = v[o + 2] - z;
   const ax1 = v[o + 3] - x, ay1 = v[o + 4] - y, az1 = v[o + 5] - z;
@@ -226,7 +229,7 @@ function closedForm(P: Panels, j: number, x: number, y: number, z: number): void
     gx -= ux * f;
     gy -= uy * f;
     gz -= uz * f;
-    if (ad > 0) {
+    if (offPlane) {
       const yp = t0 * lp, xp = R0sq + ad * Rp, ym = t0 * lm, xm = R0sq + ad * Rm;
       sumBeta += Math.atan2(yp * xm - xp * ym, xp * xm + yp * ym);
     }
