@@ -9,7 +9,8 @@ import { analyzeText } from '../../grammar/index';
 import type { Scene3d } from '../../grammar/scene';
 import type { Result } from '../../server/src/engine/result';
 import { createCache3d, solve3d, type Cache3d } from '../../server/src/engine/solve';
-import { storedProgress, withGridBuilding } from '../../server/src/engine/superpose';
+import { createEngineCache, solveScene } from '../../server/src/engine/index';
+import { storedProgress, warmStoredGrids, withGridBuilding } from '../../server/src/engine/superpose';
 
 // A slice of 150 × 150 cells: over the coarse picture's 2e5 point-panel pairs, so it goes through
 // the treecode (one solution at a time, so a build costs K + 1 evaluations and is done in chunks).
@@ -119,5 +120,25 @@ describe('building the stored grids of drive-only edits', () => {
     const edited = withGridBuilding('stored-only', () => solve('-7 kV', cache))!;
     expect(edited.stats.timings.slicesSuperposed).toBeDefined();
     expectSame(edited, solve('-7 kV')!);
+  });
+
+  it('warmStoredGrids builds, in stoppable steps, the grids the latest live solves went through; a drive edit then sums them', () => {
+    const cache = createEngineCache();
+    const live = (hv: string) => withGridBuilding('stored-only', () => solveScene(scene(hv), { level: 'coarse', cache }))!;
+    live('10 kV');
+    const levelOf = () => [...(cache.store.get('3d') as Cache3d).levels.values()][0];
+    const before = storedProgress(levelOf());
+    expect(before.done).toBeLessThan(before.total);
+    // Stopped after a few steps: false, with what it built kept.
+    let polls = 0;
+    expect(warmStoredGrids(cache, () => ++polls > 3)).toBe(false);
+    const partial = storedProgress(levelOf());
+    expect(partial.done).toBeGreaterThan(before.done);
+    expect(warmStoredGrids(cache, () => false)).toBe(true);
+    expect(storedProgress(levelOf()).done).toBe(before.total);
+    // Every grid stored: a drive edit along a new direction needs no new grid, and matches a fresh solve.
+    const edited = live('-7 kV');
+    expect(storedProgress(levelOf()).directions).toBe(0);
+    expectSame(edited, solveScene(scene('-7 kV'), { level: 'coarse' })!);
   });
 });

@@ -28,6 +28,8 @@ import { FAST_EVAL_MIN_PANELS } from './fast/bem3d';
 import { panelPotentialAndGradient } from './kernels/triangle';
 import { behindGround, FULL_GRID, probePoints, sliceLayout, type GridEvaluator, type SliceLayout } from './evaluate';
 import { FieldEvaluator } from './fast/field-evaluator';
+import type { EngineCache } from './index';
+import type { Cache3d } from './solve';
 import type { ProbeResult, SliceResult } from './result';
 
 /**
@@ -75,6 +77,8 @@ interface Stored {
    * same drive, floating electrodes following it) is then last + α·grid, with no evaluation.
    */
   directions: { d: number[]; values: Float64Array }[];
+  /** How the last use evaluated (what a build in the background needs), and which use of the level it was. */
+  use: { images: Image[]; charges: Scene3d['charges']; ev: Evaluator; at: number } | null;
 }
 
 interface SliceStored extends Stored {
@@ -92,9 +96,13 @@ interface LevelStore {
   lines: Map<string, Pick<SliceResult, 'outlines' | 'groundLines'>>;
   /** The treecode over the level's panels (geometry only; densities are set per solution). */
   tree: FieldEvaluator | null;
+  /** Uses of the level so far, and when the last was (a clock shared by all levels). */
+  uses: number;
+  lastUse: number;
 }
 
 const stores = new WeakMap<Level3d, LevelStore>();
+let clock = 0;
 
 /** Most stored values (8 bytes each) for one slice: 2e7, 160 MB; larger grids are evaluated afresh. */
 export const MAX_STORED_VALUES = 2e7;
@@ -110,7 +118,7 @@ const DIRECT_CHUNK = 256;
 function storeOf(level: Level3d): LevelStore {
   let s = stores.get(level);
   if (!s) {
-    s = { signature: null, slices: new Map(), probes: new Map(), thin: null, lines: new Map(), tree: null };
+    s = { signature: null, slices: new Map(), probes: new Map(), thin: null, lines: new Map(), tree: null, uses: 0, lastUse: 0 };
     stores.set(level, s);
   }
   return s;
@@ -127,6 +135,8 @@ export function useSuperposition(level: Level3d, signature: string): boolean {
   const s = storeOf(level);
   const changed = s.signature !== null && s.signature !== signature;
   s.signature = signature;
+  s.uses++;
+  s.lastUse = ++clock;
   return building === 'stored-only' || changed || s.slices.size > 0 || s.probes.size > 0 || s.thin !== null;
 }
 
@@ -279,7 +289,7 @@ function solution(m: number): Solution {
 }
 
 function newStored(pts: Float64Array, level: Level3d): Stored {
-  return { pts, units: level.unit.map(() => solution(pts.length / 3)), free: null, last: null, directions: [] };
+  return { pts, units: level.unit.map(() => solution(pts.length / 3)), free: null, last: null, directions: [], use: null };
 }
 
 /** The solutions s must hold for the level: the unit ones, and the free charges' one if any (started afresh when they changed). */
@@ -373,6 +383,7 @@ function valuesFor(
   isCancelled?: () => boolean,
 ): Float64Array | null {
   const eps = scene.medium.permittivity;
+  s.use = { images, charges: scene.charges, ev, at: storeOf(level).uses };
   let values: Float64Array | null;
   if (isComplete(s, level) || shouldComplete(s, level, ev)) {
     if (!complete(s, level, images, scene.charges, ev, isCancelled)) return null;
@@ -423,6 +434,33 @@ function fromLast(s: Stored, level: Level3d, images: Image[], potentials: readon
   if (s.directions.length > level.unit.length) s.directions.shift();
   addScaled(out, values, size);
   return out;
+}
+
+/**
+ * Builds, in the background, the stored grids that the latest uses of the most recently used levels
+ * (`levels` of them: a geometry's coarse and full level) went through, the cheapest first, in
+ * resumable steps. True when they are all complete; false when stopped by isCancelled (what was
+ * built is kept). The levels are those of the engine cache (index.ts EngineCache, 3d store).
+ */
+export function warmStoredGrids(cache: EngineCache, isCancelled: () => boolean, levels = 2): boolean {
+  const c3 = cache.store.get('3d') as Cache3d | undefined;
+  if (!c3) return true;
+  const used = [...c3.levels.values()]
+    .map((level) => ({ level, store: stores.get(level) }))
+    .filter((u): u is { level: Level3d; store: LevelStore } => u.store !== undefined && u.store.uses > 0)
+    .sort((a, b) => b.store.lastUse - a.store.lastUse)
+    .slice(0, levels);
+  const work = used.flatMap(({ level, store }) =>
+    [...store.slices.values(), ...store.probes.values(), ...(store.thin ? [store.thin] : [])]
+      .filter((s) => s.use?.at === store.uses)
+      .map((s) => ({ s, level, left: workLeft(s, level, s.use!.ev) })),
+  );
+  work.sort((a, b) => a.left - b.left);
+  for (const { s, level } of work) {
+    const use = s.use!;
+    if (!complete(s, level, use.images, use.charges, use.ev, isCancelled)) return false;
+  }
+  return true;
 }
 
 /** Slices of a solved level by superposition (see the header); null when cancelled. */

@@ -4,12 +4,13 @@
 //
 // Drive-only edits sum stored per-electrode grids (engine/superpose.ts), which cost about K + 1
 // evaluations to build. A live job never waits for that build: it takes what is stored and
-// evaluates the rest afresh (one evaluation, the same values). The build happens while the worker
-// is idle (warmSolveJob, after a job is done), in resumable steps that a newly posted job stops; once
-// both levels' grids of a scene are complete, a job for it skips the coarse picture.
+// evaluates the rest from the last picture (one evaluation at most, the same values). The build
+// happens while the worker is idle (warmSolveJob, after a job is done), in resumable steps that a
+// newly posted job stops; once both levels' grids of a scene are complete, a job for it skips the
+// coarse picture.
 import type { Scene } from '../../../grammar/scene';
 import { solveScene, type EngineCache } from '../engine/index';
-import { withGridBuilding } from '../engine/superpose';
+import { warmStoredGrids, withGridBuilding } from '../engine/superpose';
 import type { SolveLevel } from '../protocol';
 import type { FromWorker, SolveJob } from './worker-messages';
 
@@ -33,14 +34,18 @@ export class WarmScenes {
   }
 }
 
-/** What a scene's stored grids depend on: the geometry, the free charges and the limits (null without a geometry signature). */
+/**
+ * What a scene's stored grids depend on: the geometry, the free charges and the limits. Null without
+ * a geometry signature, and for the 2d spaces, whose engines build their grids in one step that
+ * cannot be stopped (so they are not warmed in the background).
+ */
 export function warmKey(job: Pick<SolveJob, 'scene' | 'geometry' | 'maxPanels' | 'maxGridCells'>): string | null {
-  if (job.geometry === undefined) return null;
+  if (job.geometry === undefined || job.scene.space !== '3d') return null;
   const charges = JSON.stringify(job.scene.charges, (key, value) => (key === 'range' || key === 'nameRange' ? undefined : value));
   return JSON.stringify([job.geometry, charges, job.maxPanels, job.maxGridCells]);
 }
 
-function solveLevel(scene: Scene, job: SolveJob, level: SolveLevel, cache: EngineCache, isCancelled: () => boolean, superpose = false) {
+function solveLevel(scene: Scene, job: SolveJob, level: SolveLevel, cache: EngineCache, isCancelled: () => boolean) {
   const coarse = level === 'coarse';
   return solveScene(scene, {
     level,
@@ -48,7 +53,6 @@ function solveLevel(scene: Scene, job: SolveJob, level: SolveLevel, cache: Engin
     maxGridCells: coarse ? Math.min(job.maxGridCells, COARSE_GRID_CELLS) : job.maxGridCells,
     isCancelled,
     cache,
-    superpose,
   });
 }
 
@@ -78,21 +82,17 @@ export function runSolveJob(
 }
 
 /**
- * Idle work after a job that ended 'done': builds the stored grids of drive-only edits for its scene,
- * the coarse level first (the first picture of the next drive edit), then the full one. Stops when
+ * Idle work after a job that ended 'done': builds the stored grids its solves went through (3d;
+ * engine/superpose.ts warmStoredGrids), cheapest first, so the next drive edit sums them. Stops when
  * `stop` says so (a new job was posted); what was built is kept and the next warm-up goes on from
- * there. Returns whether the scene is warm. The results are thrown away.
+ * there. Returns whether the scene is warm.
  */
 export function warmSolveJob(job: SolveJob, cache: EngineCache, stop: () => boolean, warm: WarmScenes): boolean {
   const key = warmKey(job);
   if (key === null) return false;
   if (warm.has(key)) return true;
   try {
-    for (const level of ['coarse', 'full'] as const) {
-      if (stop()) return false;
-      const result = withGridBuilding('build', () => solveLevel(job.scene, job, level, cache, stop, true));
-      if (result === null) return false;
-    }
+    if (!warmStoredGrids(cache, stop)) return false;
   } catch {
     // A warm-up that fails leaves the live solves as they are: they evaluate afresh.
     return false;
