@@ -1,9 +1,8 @@
 // The language code (lexer, parser, analysis, geometry checks) runs several times slower until the
 // JavaScript engine has compiled it hot, so the first keystrokes after opening a file would pay for
 // that. The server therefore analyses a few small scenes (one per space, the common statements)
-// while it starts, one analysis per turn of the event loop so that messages go first. Each round
-// shifts the text down a line, so that the parser's chunk cache (keyed by position) misses and the
-// parser runs too.
+// while it starts, before it answers the editor's first request. Each round shifts the text down a
+// line, so that the parser's chunk cache (keyed by position) misses and the parser runs too.
 import { analyzeText } from '../../../grammar/index';
 
 export const WARM_UP_SCENES = [
@@ -53,7 +52,7 @@ probe tip point at (0, 95) mm
 `,
 ];
 
-/** Analyses the warm-up scenes `rounds` times, one analysis per scheduled turn; `done` runs after the last. */
+/** Analyses the warm-up scenes `rounds` times, one analysis per call of `schedule` (which may run it at once); `done` runs after the last. */
 export function warmUpAnalysis(rounds = 3, schedule: (next: () => void) => void = setImmediate, done?: () => void): void {
   const texts = Array.from({ length: rounds }, (_, r) => WARM_UP_SCENES.map((t) => '\n'.repeat(r + 1) + t)).flat();
   const next = () => {
