@@ -7,11 +7,12 @@ import type { Charge3d, Scene3d } from '../../../../grammar/scene';
 import { EPSILON_0 } from '../../../../grammar/scene';
 import { transferSolution } from '../fast/transfer';
 import { chargePotential } from '../kernels/free-charges';
-import { chooseSolver, createSolver, type LinearSolver, type SolverKind } from '../linear/solver';
+import { chooseSolver, createSolver, needsDenseMatrix, type LinearSolver, type SolverKind } from '../linear/solver';
 import type { Mesh } from '../mesh/types';
 import { reflect, type Image } from './images';
 import { surfaceCollocation } from './collocation';
 import { buildOperator } from './operator';
+import { matrixReuse } from './reuse';
 import { createSystem, type Bem3dSystem } from './system';
 
 export interface FreeSolution {
@@ -35,6 +36,10 @@ export interface Level3d {
   timings: Record<string, number>;
   /** Iterations of the unit solves, per electrode (iterative solvers; empty for a direct one). */
   iterations?: number[];
+  /** The dense matrix, when the solver has one (a later geometry keeps what it can of it: reuse.ts). */
+  matrix?: Float64Array;
+  /** Matrix entries copied from an earlier level's, of all n² (0 when none). */
+  reused?: number;
 }
 
 /** Σ of x·area over each electrode's panels. */
@@ -91,7 +96,10 @@ export function solveLevel(
     const sys = createSystem(mesh, images);
     sys.points = surfaceCollocation(scene, mesh, sys.panels.diameter);
     const kind = chooseSolver(sys.n, { kind: options.kind });
-    const op = buildOperator(sys, kind, options.isCancelled);
+    // After a geometry edit, the entries among electrodes the edit left alone come from the earlier matrix.
+    const earlier = options.warm;
+    const reuse = earlier?.matrix && needsDenseMatrix(kind) ? matrixReuse({ sys: earlier.sys, matrix: earlier.matrix }, sys) : null;
+    const op = buildOperator(sys, kind, options.isCancelled, reuse);
     if (!op) return null;
     timings.assembly = performance.now() - t;
     t = performance.now();
@@ -116,7 +124,9 @@ export function solveLevel(
     const sums = unit.map((x) => chargeSums(mesh, x, K)); // sums[k][i]
     const raw = Array.from({ length: K }, (_, i) => Array.from({ length: K }, (_, k) => sums[k][i]));
     const free = withFree ? { key, x: solved[K], induced: chargeSums(mesh, solved[K], K) } : null;
-    level = { mesh, sys, solver, kind, unit, raw, free, timings, iterations };
+    let reused = 0;
+    if (reuse) for (let i = 0; i < sys.n; i++) if (reuse.from[i] >= 0) reused++;
+    level = { mesh, sys, solver, kind, unit, raw, free, timings, iterations, matrix: op.matrix, reused: reused * reused };
   }
   if (scene.charges.length === 0) {
     level.free = null;

@@ -3,7 +3,7 @@
 import { spatialOrder } from '../linear/block-jacobi';
 import { twoLevel } from '../linear/two-level';
 import { denseOperator, needsDenseMatrix, type LinearOperator, type SolverKind } from '../linear/solver';
-import { assembleDense, entry, type Bem3dSystem } from './system';
+import { assembleDense, entry, type Bem3dSystem, type MatrixReuse } from './system';
 
 /** Panels per block of the block-Jacobi part of the dense iterative solver's preconditioner. */
 export const PRECONDITIONER_BLOCK = 64;
@@ -18,12 +18,12 @@ export function registerBem3dOperator(kind: string, factory: OperatorFactory): v
   factories.set(kind, factory);
 }
 
-/** The operator of the system for a solver kind; null when cancelled. */
-export function buildOperator(sys: Bem3dSystem, kind: SolverKind, isCancelled?: () => boolean): LinearOperator | null {
+/** The operator of the system for a solver kind; null when cancelled. A dense one copies what it can from `reuse`. */
+export function buildOperator(sys: Bem3dSystem, kind: SolverKind, isCancelled?: () => boolean, reuse?: MatrixReuse | null): LinearOperator | null {
   const factory = factories.get(kind);
   if (factory) return factory(sys, isCancelled);
   if (needsDenseMatrix(kind)) {
-    const A = assembleDense(sys, isCancelled);
+    const A = assembleDense(sys, isCancelled, reuse);
     if (!A) return null;
     const op = denseOperator(sys.n, A);
     if (kind === 'dense-lu') return op;

@@ -57,11 +57,25 @@ export function entry(sys: Bem3dSystem, i: number, j: number): number {
 }
 
 /**
+ * Entries of an earlier system's matrix that still hold: panels of electrodes that an edit left
+ * alone (the same triangles and collocation points, the same images) keep their entries with each
+ * other, since an entry depends only on its panel and its point (bem3d/reuse.ts finds them).
+ */
+export interface MatrixReuse {
+  matrix: Float64Array;
+  n: number;
+  /** The earlier index of each panel, −1 for a panel that is new. */
+  from: Int32Array;
+  thinRows?: ThinRows;
+}
+
+/**
  * The dense matrix, row-major, A_ij = (1/4π)·Σ_images sign·I_j(image(p_i)); null when cancelled
  * (polled every few rows). Also fills sys.thinRows (see ThinRows): thin panels' rows first, with
- * their normal gradients, then the others (fillDenseRows).
+ * their normal gradients, then the others (fillDenseRows). Entries between kept panels are copied
+ * from `reuse` when given.
  */
-export function assembleDense(sys: Bem3dSystem, isCancelled?: () => boolean): Float64Array | null {
+export function assembleDense(sys: Bem3dSystem, isCancelled?: () => boolean, reuse?: MatrixReuse | null): Float64Array | null {
   const n = sys.n;
   const A = new Float64Array(n * n);
   const P = sys.panels;
@@ -69,17 +83,24 @@ export function assembleDense(sys: Bem3dSystem, isCancelled?: () => boolean): Fl
   const { mesh, images } = sys;
   const c = mesh.centroid;
   let thin: number[] = [];
-  let others: number[] = [];
   for (let i = 0; i < n; i++) {
     if (mesh.thin[i] && p[3 * i] === c[3 * i] && p[3 * i + 1] === c[3 * i + 1] && p[3 * i + 2] === c[3 * i + 2]) thin.push(i);
-    else others.push(i);
   }
-  if (thin.length * n > THIN_ROWS_MAX_ENTRIES) {
-    // Too large to keep beside the matrix: surface fields fall back to sums over all panels.
-    thin = [];
-    others = Array.from({ length: n }, (_, i) => i);
-  }
+  // Too many to keep beside the matrix: surface fields fall back to sums over all panels.
+  if (thin.length * n > THIN_ROWS_MAX_ENTRIES) thin = [];
+  const isThin = new Uint8Array(n);
+  for (const i of thin) isThin[i] = 1;
   const thinRows: ThinRows = { panels: Int32Array.from(thin), rows: new Float64Array(thin.length * n) };
+  // Reused rows and columns (kept panels), and the columns every reused row still needs (new panels).
+  const from = reuse?.from ?? null;
+  const fresh = from ? Int32Array.from({ length: n }, (_, j) => j).filter((j) => from[j] < 0) : null;
+  const kept = from ? Int32Array.from({ length: n }, (_, j) => j).filter((j) => from[j] >= 0) : new Int32Array(0);
+  const oldThin = new Int32Array(reuse?.n ?? 0).fill(-1);
+  reuse?.thinRows?.panels.forEach((i, t) => (oldThin[i] = t));
+  const copyRow = (target: Float64Array, at: number, source: Float64Array, sourceAt: number) => {
+    for (let k = 0; k < kept.length; k++) target[at + kept[k]] = source[sourceAt + from![kept[k]]];
+  };
+
   const I = images.length;
   const sign = Float64Array.from(images, (im) => im.sign);
   const rx = new Float64Array(I), ry = new Float64Array(I), rz = new Float64Array(I);
@@ -91,6 +112,15 @@ export function assembleDense(sys: Bem3dSystem, isCancelled?: () => boolean): Fl
   for (let t = 0; t < thin.length; t++) {
     if ((t & 63) === 0 && isCancelled?.()) return null;
     const i = thin[t], row = i * n, out = t * n;
+    // A kept panel whose earlier matrix had its rows: copy them, compute the new columns only.
+    const oi = from ? from[i] : -1;
+    const ot = oi >= 0 ? oldThin[oi] : -1;
+    let cols: Int32Array | null = null;
+    if (ot >= 0) {
+      copyRow(A, row, reuse!.matrix, oi * reuse!.n);
+      copyRow(thinRows.rows, out, reuse!.thinRows!.rows, ot * reuse!.n);
+      cols = fresh;
+    }
     const nx = mesh.normal[3 * i], ny = mesh.normal[3 * i + 1], nz = mesh.normal[3 * i + 2];
     for (let k = 0; k < I; k++) {
       reflect(images[k], p[3 * i], p[3 * i + 1], p[3 * i + 2], r);
@@ -102,7 +132,9 @@ export function assembleDense(sys: Bem3dSystem, isCancelled?: () => boolean): Fl
       gnz[k] = images[k].sign * images[k].flip[2] * nz;
     }
     // The potential and its normal gradient in one pass.
-    for (let j = 0; j < n; j++) {
+    const count = cols ? cols.length : n;
+    for (let m = 0; m < count; m++) {
+      const j = cols ? cols[m] : m;
       let v = 0, gn = 0;
       for (let k = 0; k < I; k++) {
         panelPotentialAndGradient(P, j, rx[k], ry[k], rz[k], g);
@@ -113,16 +145,35 @@ export function assembleDense(sys: Bem3dSystem, isCancelled?: () => boolean): Fl
       thinRows.rows[out + j] = INV_4PI * gn;
     }
   }
-  if (!fillDenseRows(P, p, images, Int32Array.from(others), A, isCancelled)) return null;
+  // The other rows: kept ones copy their kept columns and compute the rest; new ones compute all.
+  const copied: number[] = [];
+  const whole: number[] = [];
+  for (let i = 0; i < n; i++) {
+    if (isThin[i]) continue;
+    if (from && from[i] >= 0) copied.push(i);
+    else whole.push(i);
+  }
+  for (const i of copied) copyRow(A, i * n, reuse!.matrix, from![i] * reuse!.n);
+  if (copied.length > 0 && !fillDenseRows(P, p, images, Int32Array.from(copied), A, isCancelled, fresh!)) return null;
+  if (!fillDenseRows(P, p, images, Int32Array.from(whole), A, isCancelled)) return null;
   sys.thinRows = thinRows;
   return A;
 }
 
 /**
- * Fills the given rows of the dense matrix A (n×n, row-major) with the potential entries. Plain
- * arrays only, so that a worker thread could fill rows of a shared matrix. False when cancelled.
+ * Fills the given rows of the dense matrix A (n×n, row-major) with the potential entries, in the
+ * given columns (all when absent). Plain arrays only, so that a worker thread could fill rows of a
+ * shared matrix. False when cancelled.
  */
-export function fillDenseRows(P: Panels, points: Float64Array, images: readonly Image[], rows: Int32Array, A: Float64Array, isCancelled?: () => boolean): boolean {
+export function fillDenseRows(
+  P: Panels,
+  points: Float64Array,
+  images: readonly Image[],
+  rows: Int32Array,
+  A: Float64Array,
+  isCancelled?: () => boolean,
+  cols?: Int32Array,
+): boolean {
   const n = P.count;
   const I = images.length;
   const sign = Float64Array.from(images, (im) => im.sign);
@@ -136,6 +187,15 @@ export function fillDenseRows(P: Panels, points: Float64Array, images: readonly 
       rx[k] = r[0];
       ry[k] = r[1];
       rz[k] = r[2];
+    }
+    if (cols) {
+      for (let m = 0; m < cols.length; m++) {
+        const j = cols[m];
+        let v = 0;
+        for (let k = 0; k < I; k++) v += sign[k] * panelPotential(P, j, rx[k], ry[k], rz[k]);
+        A[row + j] = INV_4PI * v;
+      }
+      continue;
     }
     if (I === 1) {
       const x = rx[0], y = ry[0], z = rz[0];
