@@ -359,30 +359,61 @@ const thinStored = new WeakMap<Factored, { vectors: (Float64Array | null)[]; fre
 function thinFields(setup: Space2d, elements: Element2d[], far: Float64Array, taus: Float64Array[], withFree: boolean[]): Float64Array[] {
   const K = taus.length;
   const outs = taus.map(() => new Float64Array(2 * elements.length));
+  const mid = new Float64Array(3 * K);
   const plus = new Float64Array(3 * K);
   const minus = new Float64Array(3 * K);
   elements.forEach((el, i) => {
     if (!el.thin) return;
     const delta = 1e-3 * el.length;
-    fieldsAt(setup, elements, far, taus, withFree, el.mx + delta * el.nx, el.my + delta * el.ny, plus);
-    fieldsAt(setup, elements, far, taus, withFree, el.mx - delta * el.nx, el.my - delta * el.ny, minus);
+    // Elements beyond NEAR_THIN element lengths are smooth across the two points: the mean of their
+    // fields there is the field at the midpoint within (δ/d)² ≈ 1e-7 of their share, so they are
+    // evaluated once; nearer ones (the element itself among them) at both points.
+    const near = { x: el.mx, y: el.my, r: NEAR_THIN * el.length };
+    fieldsAt(setup, elements, far, taus, withFree, el.mx, el.my, mid, near, false);
+    fieldsAt(setup, elements, far, taus, [], el.mx + delta * el.nx, el.my + delta * el.ny, plus, near, true);
+    fieldsAt(setup, elements, far, taus, [], el.mx - delta * el.nx, el.my - delta * el.ny, minus, near, true);
     for (let b = 0; b < K; b++) {
-      outs[b][2 * i] = 0.5 * (plus[3 * b + 1] + minus[3 * b + 1]);
-      outs[b][2 * i + 1] = 0.5 * (plus[3 * b + 2] + minus[3 * b + 2]);
+      outs[b][2 * i] = mid[3 * b + 1] + 0.5 * (plus[3 * b + 1] + minus[3 * b + 1]);
+      outs[b][2 * i + 1] = mid[3 * b + 2] + 0.5 * (plus[3 * b + 2] + minus[3 * b + 2]);
     }
   });
   return outs;
 }
 
-/** As fieldAt (no potential at infinity) for several densities at once: (φ, E) of density b at acc[3b ..]. */
-function fieldsAt(setup: Space2d, elements: Element2d[], far: Float64Array, taus: Float64Array[], withFree: boolean[], x: number, y: number, acc: Float64Array): void {
+/** Elements within this many lengths of a thin element are evaluated on both sides of it (thinFields). */
+const NEAR_THIN = 3;
+
+/**
+ * As fieldAt (no potential at infinity) for several densities at once: (φ, E) of density b at
+ * acc[3b ..]. With `near` given, only the elements (or images) within near.r of (near.x, near.y)
+ * (keepNear) or only the others.
+ */
+function fieldsAt(
+  setup: Space2d,
+  elements: Element2d[],
+  far: Float64Array,
+  taus: Float64Array[],
+  withFree: boolean[],
+  x: number,
+  y: number,
+  acc: Float64Array,
+  near: { x: number; y: number; r: number } | null = null,
+  keepNear = false,
+): void {
   acc.fill(0);
   const K = taus.length;
   const g = new Float64Array(3);
   const mirror = setup.mirror;
-  const add = (j: number, px: number, py: number, sign: number, flipX: number, flipY: number) => {
-    g[0] = g[1] = g[2] = 0;
+  const add = (j: number, px: number, py: number, sign: number, flipX: number, flipY: number, image: boolean) => {
     const el = elements[j];
+    if (near) {
+      // The reference point goes where the target went (mirrored for an image).
+      const rx = image && mirror!.axis === 0 ? 2 * mirror!.at - near.x : near.x;
+      const ry = image && mirror!.axis === 1 ? 2 * mirror!.at - near.y : near.y;
+      const isNear = Math.hypot(rx - el.mx, ry - el.my) <= near.r + 0.5 * el.length;
+      if (isNear !== keepNear) return;
+    }
+    g[0] = g[1] = g[2] = 0;
     if (Math.hypot(px - el.mx, py - el.my) > FAR_RATIO * el.length) {
       for (let q = 0; q < FAR_RULE; q++) {
         const o = (j * FAR_RULE + q) * 3;
@@ -399,9 +430,9 @@ function fieldsAt(setup: Space2d, elements: Element2d[], far: Float64Array, taus
     }
   };
   for (let j = 0; j < elements.length; j++) {
-    add(j, x, y, 1, 1, 1);
+    add(j, x, y, 1, 1, 1, false);
     // Images of opposite sign: φ_img(p) = −φ(Mp), E_img(p) = −M·E(Mp).
-    if (mirror) add(j, mirror.axis === 0 ? 2 * mirror.at - x : x, mirror.axis === 1 ? 2 * mirror.at - y : y, -1, mirror.axis === 0 ? 1 : -1, mirror.axis === 1 ? 1 : -1);
+    if (mirror) add(j, mirror.axis === 0 ? 2 * mirror.at - x : x, mirror.axis === 1 ? 2 * mirror.at - y : y, -1, mirror.axis === 0 ? 1 : -1, mirror.axis === 1 ? 1 : -1, true);
   }
   const free = new Float64Array(3);
   for (const f of setup.free) f.add(x, y, true, free, false);
@@ -417,8 +448,6 @@ function surfacePeaks(setup: Space2d, level: Level, d: Driven, k: number, superp
   const peaks: SurfacePeak[] = Array.from({ length: k }, () => ({ value: 0, at: [NaN, NaN] as Vec2, edge: false }));
   const { elements } = level;
   const far = farRules(elements);
-  const plus = new Float64Array(3);
-  const minus = new Float64Array(3);
   let summed: Float64Array | null = null;
   if (superpose && elements.some((el) => el.thin)) {
     const f = level.factored;
@@ -444,25 +473,16 @@ function surfacePeaks(setup: Space2d, level: Level, d: Driven, k: number, superp
       if (!v || w === 0) return;
       for (let i = 0; i < summed!.length; i++) summed![i] += w * v[i];
     });
-  }
+  } else if (elements.some((el) => el.thin)) summed = thinFields(setup, elements, far, [d.tau], [true])[0];
   for (let i = 0; i < elements.length; i++) {
     const el = elements[i];
     let magnitude: number;
     if (!el.thin) magnitude = Math.abs(d.tau[i]);
     else {
-      // Principal-value field: the mean of the fields a step δ = L/1000 to either side along the
-      // normal, which cancels the ±τ/2 jump of the element's own density (O(δ²) error).
-      const delta = 1e-3 * el.length;
-      let ex: number, ey: number;
-      if (summed) {
-        ex = summed[2 * i];
-        ey = summed[2 * i + 1];
-      } else {
-        fieldAt(setup, elements, far, d, el.mx + delta * el.nx, el.my + delta * el.ny, plus);
-        fieldAt(setup, elements, far, d, el.mx - delta * el.nx, el.my - delta * el.ny, minus);
-        ex = 0.5 * (plus[1] + minus[1]);
-        ey = 0.5 * (plus[2] + minus[2]);
-      }
+      // Principal-value field (thinFields): the mean of the fields a step δ = L/1000 to either side
+      // along the normal, which cancels the ±τ/2 jump of the element's own density (O(δ²) error).
+      const ex = summed![2 * i];
+      const ey = summed![2 * i + 1];
       const half = 0.5 * d.tau[i];
       magnitude = Math.max(Math.hypot(ex + half * el.nx, ey + half * el.ny), Math.hypot(ex - half * el.nx, ey - half * el.ny));
     }
