@@ -13,8 +13,11 @@
 // analytic within distance d of a box of half-width a converges like ρ^−p, ρ = d/a + √((d/a)² + 1)
 // (Trefethen, Approximation Theory and Approximation Practice, ch. 8): with d ≥ 2a and p = 8,
 // ρ^−p ≈ 1e-5 per level, well within the slices' contouring needs; the tests check the grid against
-// the direct sum. One code serves the ring kernel and the ln kernel, images of a ground plane and
-// (axisymmetric) cells at r < 0, which see the mirror image of the half-plane.
+// the direct sum. Runs of elements along a side act on distant blocks through a few proxy charges
+// along their arc length (Clusters below); the planar ln kernel gathers far sources into complex
+// Taylor series instead of interpolation points. One code serves the ring kernel and the ln kernel,
+// several densities at once (superposition), images of a ground plane and (axisymmetric) cells at
+// r < 0, which see the mirror image of the half-plane.
 import { gaussLegendre } from '../special/gauss-legendre';
 import { integrateCurve, type KernelAdd, type LineAdd, type Mirror } from './bem2d';
 import { curvePoint, type Element2d } from './elements';
@@ -111,17 +114,17 @@ interface FarField<T> {
 
 /**
  * Runs of elements along one curve (a whole side or arc, split into consecutive elements), cut by
- * bisection into clusters. A cluster well away from a block acts through `order` proxy charges at
+ * bisection into clusters. A cluster well away from a block acts through p ≤ order proxy charges at
  * Chebyshev points of its arc length s, Q_k = Σ_elements τ·∫ ℓ_k(s) ds (ℓ_k the Lagrange basis; the
  * elements' 3-point rules integrate it exactly for order ≤ 6 and within ρ^−6 beyond): the kernel
  * along the curve is smooth in s for a target beyond CLUSTER_SEPARATION half-lengths, so it is
  * interpolated in s (the same barycentric formula on the source side).
  */
 interface Clusters {
-  /** Per cluster: first and past-last element, proxy positions and arc lengths, barycentric weights, charges. */
+  /** Per cluster: its first and past-last element. */
   first: Int32Array;
   last: Int32Array;
-  /** Arc-length offset of each element from the start of its run, and the cluster's run start element. */
+  /** Arc-length offset of each element from the start of its run. */
   offset: Float64Array;
   /** Proxy sets per cluster, one per order of PROXY_ORDERS up to the accuracy's order (the last the full one); q: p charges per density. */
   proxies: { x: Float64Array; y: Float64Array; s: Float64Array; w: Float64Array; q: Float64Array }[][];
@@ -172,7 +175,6 @@ function buildClusters(elements: Element2d[], order: number): Clusters {
   const centreX: number[] = [], centreY: number[] = [], radius: number[] = [];
   const proxies: Clusters['proxies'] = [];
   const offset = new Float64Array(n);
-  const runStart = new Int32Array(n);
   const size = elements.reduce((m, el) => Math.max(m, Math.abs(el.x0), Math.abs(el.y0)), 0) || 1;
   const point = new Float64Array(4);
   const make = (start: number, a: number, b: number): number => {
@@ -216,10 +218,8 @@ function buildClusters(elements: Element2d[], order: number): Clusters {
   for (let a = 0; a < n; ) {
     let b = a + 1;
     offset[a] = 0;
-    runStart[a] = a;
     while (b < n && sameCurve(elements[b - 1], elements[b], 1e-9 * size)) {
       offset[b] = offset[b - 1] + elements[b - 1].length;
-      runStart[b] = a;
       b++;
     }
     const root = make(a, a, b);
