@@ -4,11 +4,10 @@
 import { describe, expect, it } from 'vitest';
 import { surfaceCollocation } from '../../server/src/engine/bem3d/collocation';
 import { imageSet } from '../../server/src/engine/bem3d/images';
-import { matrixReuse } from '../../server/src/engine/bem3d/reuse';
+import { matrixReuse, panelPairs } from '../../server/src/engine/bem3d/reuse';
 import { assembleDense, createSystem } from '../../server/src/engine/bem3d/system';
-import { createEngineCache, solveScene } from '../../server/src/engine/index';
 import { meshForScene } from '../../server/src/engine/mesh/index';
-import type { Cache3d } from '../../server/src/engine/solve';
+import { createCache3d, solve3d, type Cache3d, type Solve3dOptions } from '../../server/src/engine/solve';
 import { electrode, R0, scene3d, sphere } from './scenes';
 import type { Scene3d } from '../../grammar/scene';
 
@@ -60,13 +59,30 @@ describe('matrix entries kept across a geometry edit', () => {
     expect(matrixReuse({ sys: before, matrix: A0 }, system(make(-0.05, false)))).toBeNull();
   });
 
-  it('a cached solve after the edit reuses entries and gives the fresh solve its capacitances (to the solver tolerance)', () => {
-    const cache = createEngineCache();
-    solveScene(make(-0.05), { level: 'coarse', cache });
-    const edited = solveScene(make(-0.03), { level: 'coarse', cache })!;
-    const levels = [...(cache.store.get('3d') as Cache3d).levels.values()];
-    expect(levels[levels.length - 1].reused).toBeGreaterThan(0);
-    const fresh = solveScene(make(-0.03), { level: 'coarse' })!;
+  it('pairs panels electrode by electrode for warm starts while every electrode keeps its panel count', () => {
+    const before = system(make(-0.05));
+    const moved = system(make(-0.03));
+    const pairs = panelPairs(before, moved)!;
+    expect(pairs).not.toBeNull();
+    for (let i = 0; i < moved.n; i++) expect(before.mesh.electrode[pairs[i]]).toBe(moved.mesh.electrode[i]);
+    // A bigger ball has more panels: no pairing.
+    const bigger = make(-0.05);
+    bigger.electrodes[0] = electrode('ball', sphere([-0.05, 0, 0.08], 0.06));
+    expect(panelPairs(before, system(bigger))).toBeNull();
+  });
+
+  it('a cached solve after the edit reuses entries, starts from the paired solutions and gives the fresh solve its capacitances (to the solver tolerance)', () => {
+    // Dense GMRES forced (this small scene would go to LU), so that the warm start shows in the iterations.
+    const options = (cache: Cache3d): Solve3dOptions => ({ maxPanels: 20000, maxGridCells: 1000, level: 'coarse', convergence: false, cache, solver: 'dense-gmres' });
+    const cache = createCache3d();
+    solve3d(make(-0.05), options(cache));
+    const edited = solve3d(make(-0.03), options(cache))!;
+    const last = [...cache.levels.values()].pop()!;
+    expect(last.reused).toBeGreaterThan(0);
+    const cold = createCache3d();
+    const fresh = solve3d(make(-0.03), options(cold))!;
+    const coldLevel = [...cold.levels.values()][0];
+    expect(Math.max(...last.iterations!)).toBeLessThan(Math.max(...coldLevel.iterations!));
     edited.capacitance.matrix.forEach((row, i) =>
       row.forEach((c, k) => expect(Math.abs(c - fresh.capacitance.matrix[i][k])).toBeLessThan(1e-5 * Math.abs(fresh.capacitance.matrix[i][i]))),
     );

@@ -12,7 +12,7 @@ import type { Mesh } from '../mesh/types';
 import { reflect, type Image } from './images';
 import { surfaceCollocation } from './collocation';
 import { buildOperator } from './operator';
-import { matrixReuse } from './reuse';
+import { matrixReuse, panelPairs } from './reuse';
 import { createSystem, type Bem3dSystem } from './system';
 
 export interface FreeSolution {
@@ -111,8 +111,14 @@ export function solveLevel(
     });
     // Warm start after a geometry edit (methods.md, fast methods): the earlier unit solutions moved onto
     // this mesh by nearest panel (fast/transfer.ts). A direct solver has no use for them.
+    // When every electrode kept its panel count, the panels pair up in mesh order (reuse.ts), which
+    // costs nothing next to the nearest-panel search.
     const warm = options.warm;
-    const initial = warm && warm.unit.length === K && kind !== 'dense-lu' ? warm.unit.map((u) => transferSolution(warm.mesh, u, mesh)) : undefined;
+    let initial: Float64Array[] | undefined;
+    if (warm && warm.unit.length === K && kind !== 'dense-lu') {
+      const pairs = panelPairs(warm.sys, sys);
+      initial = pairs ? warm.unit.map((u) => Float64Array.from(pairs, (f) => u[f])) : warm.unit.map((u) => transferSolution(warm.mesh, u, mesh));
+    }
     // The free charges' right-hand side joins the unit ones: an iterative solver runs them in lockstep.
     const withFree = scene.charges.length > 0;
     if (withFree) rhs.push(freeRhs(sys, scene.charges, images));
