@@ -104,7 +104,7 @@ interface LevelStore {
 const stores = new WeakMap<Level3d, LevelStore>();
 let clock = 0;
 
-/** Most stored values (8 bytes each) for one slice: 2e7, 160 MB; larger grids are evaluated afresh. */
+/** Most stored values (8 bytes each) for one slice: 2e7, 160 MB; a grid that could need more is evaluated afresh. */
 export const MAX_STORED_VALUES = 2e7;
 
 /**
@@ -284,19 +284,26 @@ function valuesAt(state: FieldState3d, pts: Float64Array, ev: Evaluator): Float6
   return out;
 }
 
-function solution(m: number): Solution {
-  return { values: new Float64Array(4 * m), filled: 0 };
+/** A solution's values are allocated when its first chunk is computed (most stay unbuilt in a live session until the warm-up). */
+function solution(): Solution {
+  return { values: new Float64Array(0), filled: 0 };
+}
+
+/** The solution's values array, allocated for m points. */
+function valuesOf(u: Solution, m: number): Float64Array {
+  if (u.values.length !== 4 * m) u.values = new Float64Array(4 * m);
+  return u.values;
 }
 
 function newStored(pts: Float64Array, level: Level3d): Stored {
-  return { pts, units: level.unit.map(() => solution(pts.length / 3)), free: null, last: null, directions: [], use: null };
+  return { pts, units: level.unit.map(() => solution()), free: null, last: null, directions: [], use: null };
 }
 
 /** The solutions s must hold for the level: the unit ones, and the free charges' one if any (started afresh when they changed). */
 function solutions(s: Stored, level: Level3d): Solution[] {
   const free = level.free;
   if (!free) s.free = null;
-  else if (s.free?.of !== free) s.free = { ...solution(s.pts.length / 3), of: free };
+  else if (s.free?.of !== free) s.free = { ...solution(), of: free };
   return s.free ? [...s.units, s.free] : s.units;
 }
 
@@ -331,7 +338,7 @@ function complete(s: Stored, level: Level3d, images: Image[], charges: Scene3d['
       const which = all.map((u, v) => (u.filled < b ? v : -1)).filter((v) => v >= 0);
       const outs = direct(which.map((v) => states[v]), s.pts.subarray(3 * a, 3 * b), (ev as { mode: EvalMode }).mode);
       which.forEach((v, i) => {
-        all[v].values.set(outs[i], 4 * a);
+        valuesOf(all[v], m).set(outs[i], 4 * a);
         all[v].filled = b;
       });
     }
@@ -343,22 +350,11 @@ function complete(s: Stored, level: Level3d, images: Image[], charges: Scene3d['
     while (u.filled < m) {
       if (isCancelled?.()) return false;
       const b = Math.min(m, u.filled + chunk);
-      u.values.set(valuesAt(states[v], s.pts.subarray(3 * u.filled, 3 * b), ev), 4 * u.filled);
+      valuesOf(u, m).set(valuesAt(states[v], s.pts.subarray(3 * u.filled, 3 * b), ev), 4 * u.filled);
       u.filled = b;
     }
   }
   return true;
-}
-
-/** Σ_k V_k·units_k[at..] + free[at..]/εr into f[0..3]. */
-function combine(units: readonly ArrayLike<number>[], free: ArrayLike<number> | null, at: number, potentials: readonly number[], permittivity: number, f: number[]): void {
-  f[0] = f[1] = f[2] = f[3] = 0;
-  units.forEach((u, k) => {
-    const v = potentials[k];
-    if (v === 0) return;
-    for (let c = 0; c < 4; c++) f[c] += v * u[at + c];
-  });
-  if (free) for (let c = 0; c < 4; c++) f[c] += free[at + c] / permittivity;
 }
 
 /** Keeps at most `most` entries, dropping the oldest. */
@@ -367,10 +363,11 @@ function trim<V>(map: Map<string, V>, most: number): void {
 }
 
 /**
- * The combined values [φ, Ex, Ey, Ez] of s's points for these drives: summed from complete stored
- * grids, completed first when due (building, or no dearer than one evaluation), else from the last
- * use's values plus the grids of the drive change (one evaluation at most, for a change along a new
- * direction), else evaluated afresh. Null when cancelled.
+ * The combined values [φ, Ex, Ey, Ez] of s's points for these drives, the cheapest way: summed from
+ * complete stored grids; or the last use's values plus known grids of the drive change (no
+ * evaluation); or the stored grids completed (when building, or when that costs no more than one
+ * evaluation) and summed; or the last values plus a new direction's grid (one evaluation); or
+ * evaluated afresh. Null when cancelled.
  */
 function valuesFor(
   s: Stored,
@@ -384,15 +381,18 @@ function valuesFor(
 ): Float64Array | null {
   const eps = scene.medium.permittivity;
   s.use = { images, charges: scene.charges, ev, at: storeOf(level).uses };
-  let values: Float64Array | null;
-  if (isComplete(s, level) || shouldComplete(s, level, ev)) {
+  // Without evaluating: complete grids, or the last values moved along known grids.
+  let values = isComplete(s, level) || building === 'build' ? null : fromLast(s, level, images, potentials, eps, ev, false);
+  if (!values && (isComplete(s, level) || shouldComplete(s, level, ev))) {
     if (!complete(s, level, images, scene.charges, ev, isCancelled)) return null;
-    values = new Float64Array(s.pts.length / 3 * 4);
-    potentials.forEach((v, k) => v !== 0 && addScaled(values!, s.units[k].values, v));
-    if (s.free) addScaled(values, s.free.values, 1 / eps);
-  } else {
+    const sum = new Float64Array((s.pts.length / 3) * 4);
+    potentials.forEach((v, k) => v !== 0 && addScaled(sum, s.units[k].values, v));
+    if (s.free) addScaled(sum, s.free.values, 1 / eps);
+    values = sum;
+  }
+  if (!values) {
     if (isCancelled?.()) return null;
-    values = fromLast(s, level, images, potentials, eps, ev) ?? valuesAt(fresh(), s.pts, ev);
+    values = fromLast(s, level, images, potentials, eps, ev, true) ?? valuesAt(fresh(), s.pts, ev);
   }
   s.last = { potentials: [...potentials], free: level.free, permittivity: eps, values };
   return values;
@@ -403,8 +403,11 @@ function addScaled(out: Float64Array, v: Float64Array, a: number): void {
   for (let i = 0; i < out.length; i++) out[i] += a * v[i];
 }
 
-/** The last use's values moved to these drives (see Stored.directions), or null when the free charges or the medium changed since. */
-function fromLast(s: Stored, level: Level3d, images: Image[], potentials: readonly number[], permittivity: number, ev: Evaluator): Float64Array | null {
+/**
+ * The last use's values moved to these drives (see Stored.directions); null when the free charges or
+ * the medium changed since, or when that takes a new direction's grid and `evaluate` is false.
+ */
+function fromLast(s: Stored, level: Level3d, images: Image[], potentials: readonly number[], permittivity: number, ev: Evaluator, evaluate: boolean): Float64Array | null {
   const last = s.last;
   if (!last || last.free !== level.free || last.permittivity !== permittivity) return null;
   const m = s.pts.length / 3;
@@ -426,6 +429,7 @@ function fromLast(s: Stored, level: Level3d, images: Image[], potentials: readon
     addScaled(out, g.values, size * Math.sign(cos));
     return out;
   }
+  if (!evaluate) return null;
   const x = new Float64Array(level.sys.n);
   d.forEach((c, k) => c !== 0 && addScaled(x, level.unit[k], c));
   const values = valuesAt(unitState(level, x, images, []), s.pts, ev);
@@ -496,8 +500,8 @@ export function superposedSlices(
     const key = JSON.stringify([slice.plane, slice.at, slice.from, slice.to, L.nu, L.nv, grid]);
     let s = store.slices.get(key);
     if (s && !sameCells(s.outside, L.outside)) s = undefined;
-    // A grid too large to keep K + 1 copies of is evaluated afresh.
-    const tooLarge = L.nu * L.nv * 4 * (level.unit.length + 1) > MAX_STORED_VALUES;
+    // A grid too large to keep its grids of (K unit ones, the free charges', the last picture and up to K of drive changes) is evaluated afresh.
+    const tooLarge = L.nu * L.nv * 4 * (2 * level.unit.length + 2) > MAX_STORED_VALUES;
     if (!tooLarge && !s) {
       s = { ...newStored(pts, level), outside: Int32Array.from(L.outside) };
       store.slices.set(key, s);
