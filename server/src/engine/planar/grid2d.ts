@@ -352,16 +352,6 @@ export function gridEvaluate(src: GridSources, grid: Grid2d, mask: Uint8Array, o
       }
     } else addSource(item >> 1, set, x, y, acc);
   };
-  /** Adds w·g (g the last unit evaluation) into into[3b ..] for the weights of each density. */
-  const spread = (into: Float64Array, weight: (b: number) => number) => {
-    for (let b = 0; b < K; b++) {
-      const w = weight(b);
-      if (w === 0) continue;
-      into[3 * b] += w * g[0];
-      into[3 * b + 1] += w * g[1];
-      into[3 * b + 2] += w * g[2];
-    }
-  };
   const addSource = (id: number, set: number, x: number, y: number, into: Float64Array) => {
     if (id >= n) {
       const px = clusters.proxies[id - n][set];
@@ -369,12 +359,12 @@ export function gridEvaluate(src: GridSources, grid: Grid2d, mask: Uint8Array, o
       for (let k = 0; k < p; k++) {
         g[0] = g[1] = g[2] = 0;
         kernel(px.x[k], px.y[k], x, y, 1, true, g);
-        if (K === 1) {
-          const q = px.q[k];
-          into[0] += q * g[0];
-          into[1] += q * g[1];
-          into[2] += q * g[2];
-        } else spread(into, (b) => px.q[b * p + k]);
+        for (let b = 0, o = 0; b < K; b++, o += 3) {
+          const q = px.q[b * p + k];
+          into[o] += q * g[0];
+          into[o + 1] += q * g[1];
+          into[o + 2] += q * g[2];
+        }
       }
       return;
     }
@@ -395,12 +385,12 @@ export function gridEvaluate(src: GridSources, grid: Grid2d, mask: Uint8Array, o
       const o = id * 15;
       for (let q = 0; q < 15; q += 3) kernel(rule5[o + q], rule5[o + q + 1], x, y, rule5[o + q + 2], true, g);
     } else integrateCurve(el, 0, el.length, x, y, kernel, 1, true, g);
-    if (K === 1) {
-      const t = taus[0][id];
-      into[0] += t * g[0];
-      into[1] += t * g[1];
-      into[2] += t * g[2];
-    } else spread(into, (b) => taus[b][id]);
+    for (let b = 0, o = 0; b < K; b++, o += 3) {
+      const t = taus[b][id];
+      into[o] += t * g[0];
+      into[o + 1] += t * g[1];
+      into[o + 2] += t * g[2];
+    }
   };
   /** Sum of items list[0 .. count) at scene point (u, v), scene components, into acc. */
   const sumAt = (list: number[], count: number, u: number, v: number) => {
