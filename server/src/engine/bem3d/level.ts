@@ -114,15 +114,19 @@ export function solveLevel(
     // When every electrode kept its panel count, the panels pair up in mesh order (reuse.ts), which
     // costs nothing next to the nearest-panel search.
     const warm = options.warm;
-    let initial: Float64Array[] | undefined;
+    let initial: (Float64Array | null)[] | undefined;
+    let freeStart: Float64Array | null = null;
     if (warm && warm.unit.length === K && kind !== 'dense-lu') {
       const pairs = panelPairs(warm.sys, sys);
-      initial = pairs ? warm.unit.map((u) => Float64Array.from(pairs, (f) => u[f])) : warm.unit.map((u) => transferSolution(warm.mesh, u, mesh));
+      const move = (u: Float64Array) => (pairs ? Float64Array.from(pairs, (f) => u[f]) : transferSolution(warm.mesh, u, mesh));
+      initial = warm.unit.map(move);
+      // The same free charges: their earlier induced densities start theirs.
+      if (warm.free && warm.free.key === key) freeStart = move(warm.free.x);
     }
     // The free charges' right-hand side joins the unit ones: an iterative solver runs them in lockstep.
     const withFree = scene.charges.length > 0;
     if (withFree) rhs.push(freeRhs(sys, scene.charges, images));
-    const solved = solver.solve(rhs, { initial: initial && withFree ? [...initial, null] : initial, isCancelled: options.isCancelled });
+    const solved = solver.solve(rhs, { initial: initial && withFree ? [...initial, freeStart] : initial, isCancelled: options.isCancelled });
     if (!solved) return null;
     const unit = solved.slice(0, K);
     timings.solve = performance.now() - t;
