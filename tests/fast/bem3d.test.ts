@@ -74,8 +74,8 @@ describe('cancellation and warm starts', () => {
     expect(solver.solve([new Float64Array(sys.n).fill(1)], { isCancelled: () => ++polls > 3 })).toBeNull();
   });
 
-  it('starts a refined mesh from the coarse solution and needs fewer iterations', () => {
-    const coarse = icosphere(1, 2), fine = icosphere(1, 3);
+  it('starts an edited mesh (the sphere grown by 2%) from the earlier solution and needs fewer iterations', () => {
+    const coarse = icosphere(1, 3), fine = icosphere(1.02, 3);
     const sc = createSystem(coarse, imageSet([]).images), sf = createSystem(fine, imageSet([]).images);
     const xc = createSolver(fastOperator(sc)!, FAST_KIND).solve([new Float64Array(sc.n).fill(1)])![0];
     const start = transferSolution(coarse, xc, fine);

@@ -152,7 +152,7 @@ describe('fast solver against dense LU', () => {
 
 describe('two-level preconditioner', () => {
   it('needs fewer GMRES iterations with the coarse level than block Jacobi alone, to the same answer', () => {
-    // Two-level additive Schwarz (block-jacobi.ts): the coarse solve removes the smooth densities
+    // Hybrid two-level Schwarz (block-jacobi.ts): the coarse solve removes the smooth densities
     // spread over many blocks, which block Jacobi alone leaves to the Krylov iteration.
     const oneLevel = buildFastSolver(src, mesh.centroid, panelExtent(P), { leafSize: 24, blockSize: 64, coarseLevel: false })!;
     const b = Float64Array.from(mesh.electrode, (o) => (o === 0 ? 1 : 0));

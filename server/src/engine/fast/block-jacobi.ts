@@ -6,16 +6,18 @@
 // surface, so M₁⁻¹ removes the strong local coupling of the first-kind operator: the oscillating
 // densities with small eigenvalues.
 //
-// Coarse level: one unknown per cluster, a constant density over it. With P the N×B matrix of
-// cluster indicators, the Galerkin matrix A_c = Pᵀ A P (B×B) is summed straight from the stored
-// blocks (a dense block adds its entries, a low-rank block U Vᵀ adds (PᵀU)(PᵀV)ᵀ), in one pass over
-// the storage. The two levels are added (two-level additive Schwarz, Smith, Bjørstad and Gropp,
-// "Domain Decomposition", 1996, ch. 5; for first-kind boundary integral operators, Heuer, Numer.
-// Math. 2001):
-//   M⁻¹ r = M₁⁻¹ r + P A_c⁻¹ Pᵀ r.
-// Block Jacobi alone leaves the smooth densities spread over many clusters, whose eigenvalues
-// span L_surface / L_cluster ~ √(N / blockSize), so its GMRES count grows with N; the coarse
-// solve takes those out and keeps the count nearly flat (measured in scripts/bench-fast.ts).
+// Coarse level: one unknown per coarse cluster (at most MAX_COARSE of them), a constant density
+// over it. With R summing a vector over each cluster, A·Rᵀ (N×G) is summed straight from the stored
+// blocks (a dense block adds its entries, a low-rank block U Vᵀ adds U·(R V)ᵀ) in one pass over the
+// storage, and A_c = R·A·Rᵀ from it. The levels are combined multiplicatively, coarse first (the
+// hybrid two-level Schwarz method; Toselli and Widlund, "Domain Decomposition Methods", 2005,
+// sec. 2.5.2, from memory):
+//   M⁻¹ = Q + M₁⁻¹ (I − A Q),  Q = Rᵀ A_c⁻¹ R,
+// which needs no product with A, since A·Q = (A·Rᵀ) A_c⁻¹ R. Block Jacobi alone leaves the smooth
+// densities spread over many blocks, whose eigenvalues span L_surface / L_block ~ √(N / blockSize),
+// so its GMRES count grows with N. Measured on a sphere beside a box, GMRES to 1e-8: 31 rounds at
+// 4k panels with block Jacobi alone; with the coarse level 21 at 4k and 20 at 16k (an additive
+// coarse level, M₁⁻¹ + Q, gave 23 and 31-36: it barely helped).
 import { forEachBlock, type HMatrix } from './hmatrix';
 
 export interface BlockJacobi {
@@ -25,8 +27,23 @@ export interface BlockJacobi {
   /** LU factors (row-major, unit lower part implied) and pivots, per block. */
   lu: Float64Array[];
   pivot: Int32Array[];
-  /** The coarse level: LU of A_c (B×B, B = number of blocks) and its pivots; null for one block. */
-  coarse: { lu: Float64Array; pivot: Int32Array; work: Float64Array } | null;
+  /** The coarse level; null when there is one cluster only. */
+  coarse: Coarse | null;
+}
+
+/**
+ * Coarse clusters (runs of tree positions), LU of A_c = R A Rᵀ (G×G) and A·Rᵀ (N×G, single
+ * precision): R sums a vector over each cluster, Rᵀ spreads one value per cluster.
+ */
+interface Coarse {
+  G: number;
+  start: Int32Array;
+  size: Int32Array;
+  lu: Float64Array;
+  pivot: Int32Array;
+  AR: Float32Array;
+  y: Float64Array;
+  rp: Float64Array;
 }
 
 /**
@@ -74,65 +91,101 @@ export function buildBlockJacobi(H: HMatrix, blockSize: number, withCoarse = tru
     }
   });
   const pivot = blocks.map((B, k) => luFactor(B, size[k]));
-  const B = start.length;
-  let coarse: BlockJacobi['coarse'] = null;
-  if (withCoarse && B > 1) {
-    const Ac = galerkinCoarse(H, owner, B);
-    coarse = { lu: Ac, pivot: luFactor(Ac, B), work: new Float64Array(B) };
+  let coarse: Coarse | null = null;
+  if (withCoarse) {
+    const cs = clusters(H, Math.max(blockSize, Math.ceil(H.size / MAX_COARSE)));
+    if (cs.start.length > 1) coarse = buildCoarse(H, cs.start, cs.size);
   }
   return { start, size, lu: blocks, pivot, coarse };
 }
 
-/** A_c = Pᵀ A P: A_c[I][J] = Σ_{i∈I, j∈J} A_ij, from the H-matrix's blocks (row-major B×B). */
-function galerkinCoarse(H: HMatrix, owner: Int32Array, B: number): Float64Array {
-  const Ac = new Float64Array(B * B);
+/** Most coarse clusters, about: A·Rᵀ holds N × G numbers (100 MB at 100k panels) and costs N·G per step. */
+const MAX_COARSE = 256;
+
+/** The largest tree clusters with at most `most` unknowns, in tree order. */
+function clusters(H: HMatrix, most: number): { start: Int32Array; size: Int32Array } {
+  const t = H.tree;
+  const starts: number[] = [];
+  const sizes: number[] = [];
+  const stack = [0];
+  while (stack.length > 0) {
+    const v = stack.pop()!;
+    if (t.count[v] <= most || t.left[v] < 0) {
+      starts.push(t.start[v]);
+      sizes.push(t.count[v]);
+    } else stack.push(t.right[v], t.left[v]);
+  }
+  const idx = starts.map((_, k) => k).sort((a, b) => starts[a] - starts[b]);
+  return { start: Int32Array.from(idx.map((k) => starts[k])), size: Int32Array.from(idx.map((k) => sizes[k])) };
+}
+
+/** A·Rᵀ from the stored blocks (a low-rank block U Vᵀ adds U·(R Vᵀ)ᵀ), then A_c = R·(A·Rᵀ). */
+function buildCoarse(H: HMatrix, start: Int32Array, size: Int32Array): Coarse {
+  const G = start.length, N = H.size;
+  const owner = new Int32Array(N);
+  for (let k = 0; k < G; k++) owner.fill(k, start[k], start[k] + size[k]);
+  const AR = new Float32Array(N * G);
   forEachBlock(H, (r0, m, c0, n, rank, values, off) => {
     if (rank < 0) {
       for (let a = 0; a < m; a++) {
-        const o = owner[r0 + a] * B, d = off + a * n;
-        for (let c = 0; c < n; c++) Ac[o + owner[c0 + c]] += values[d + c];
+        const o = (r0 + a) * G, d = off + a * n;
+        for (let c = 0; c < n; c++) AR[o + owner[c0 + c]] += values[d + c];
       }
       return;
     }
-    // A low-rank block spans whole clusters on both sides (tree order): sum its factors per cluster.
-    const I0 = owner[r0], I1 = owner[r0 + m - 1], J0 = owner[c0], J1 = owner[c0 + n - 1];
-    const ni = I1 - I0 + 1, nj = J1 - J0 + 1, vOff = off + rank * m;
-    const us = new Float64Array(rank * ni), vs = new Float64Array(rank * nj);
-    for (let l = 0; l < rank; l++) {
-      for (let a = 0; a < m; a++) us[l * ni + owner[r0 + a] - I0] += values[off + l * m + a];
-      for (let c = 0; c < n; c++) vs[l * nj + owner[c0 + c] - J0] += values[vOff + l * n + c];
-    }
-    for (let I = 0; I < ni; I++) {
+    // The block's columns span whole clusters J0..J1 (tree order): sum V's rows per cluster.
+    const J0 = owner[c0], nj = owner[c0 + n - 1] - J0 + 1, vOff = off + rank * m;
+    const vs = new Float64Array(rank * nj);
+    for (let l = 0; l < rank; l++) for (let c = 0; c < n; c++) vs[l * nj + owner[c0 + c] - J0] += values[vOff + l * n + c];
+    for (let a = 0; a < m; a++) {
+      const o = (r0 + a) * G + J0;
       for (let J = 0; J < nj; J++) {
         let s = 0;
-        for (let l = 0; l < rank; l++) s += us[l * ni + I] * vs[l * nj + J];
-        Ac[(I0 + I) * B + J0 + J] += s;
+        for (let l = 0; l < rank; l++) s += values[off + l * m + a] * vs[l * nj + J];
+        AR[o + J] += s;
       }
     }
   });
-  return Ac;
+  const Ac = new Float64Array(G * G);
+  for (let p = 0; p < N; p++) {
+    const I = owner[p] * G, o = p * G;
+    for (let J = 0; J < G; J++) Ac[I + J] += AR[o + J];
+  }
+  return { G, start, size, lu: Ac, pivot: luFactor(Ac, G), AR, y: new Float64Array(G), rp: new Float64Array(N) };
 }
 
-/** z = M⁻¹·r in tree order. */
+/**
+ * z = M⁻¹·r in tree order: with the coarse level, y = A_c⁻¹·R·r, r′ = r − (A·Rᵀ)·y,
+ * z = M₁⁻¹·r′ + Rᵀ·y; without it, z = M₁⁻¹·r.
+ */
 export function applyBlockJacobi(P: BlockJacobi, r: Float64Array, z: Float64Array): void {
+  const c = P.coarse;
+  let rr = r;
+  if (c) {
+    const { G, y, rp, AR } = c;
+    for (let k = 0; k < G; k++) {
+      let s = 0;
+      for (let i = c.start[k], e = i + c.size[k]; i < e; i++) s += r[i];
+      y[k] = s;
+    }
+    luSolve(c.lu, c.pivot, G, y, 0);
+    for (let p = 0; p < rp.length; p++) {
+      let s = 0;
+      const o = p * G;
+      for (let J = 0; J < G; J++) s += AR[o + J] * y[J];
+      rp[p] = r[p] - s;
+    }
+    rr = rp;
+  }
   for (let k = 0; k < P.start.length; k++) {
     const s0 = P.start[k], n = P.size[k];
-    for (let i = 0; i < n; i++) z[s0 + i] = r[s0 + i];
+    for (let i = 0; i < n; i++) z[s0 + i] = rr[s0 + i];
     luSolve(P.lu[k], P.pivot[k], n, z, s0);
   }
-  const c = P.coarse;
   if (!c) return;
-  // z += P A_c⁻¹ Pᵀ r: sum r over each cluster, solve the coarse system, spread back as constants.
-  const w = c.work, B = P.start.length;
-  for (let k = 0; k < B; k++) {
-    let s = 0;
-    for (let i = P.start[k], e = i + P.size[k]; i < e; i++) s += r[i];
-    w[k] = s;
-  }
-  luSolve(c.lu, c.pivot, B, w, 0);
-  for (let k = 0; k < B; k++) {
-    const v = w[k];
-    for (let i = P.start[k], e = i + P.size[k]; i < e; i++) z[i] += v;
+  for (let k = 0; k < c.G; k++) {
+    const v = c.y[k];
+    for (let i = c.start[k], e = i + c.size[k]; i < e; i++) z[i] += v;
   }
 }
 
