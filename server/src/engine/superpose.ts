@@ -319,9 +319,14 @@ function workLeft(s: Stored, level: Level3d, ev: Evaluator): number {
   return onePass(level, ev) ? Math.max(0, ...left) : left.reduce((a, b) => a + b, 0);
 }
 
-/** Whether a use should complete s now (rather than evaluate afresh): always when building, else when that costs no more than one evaluation. */
+/**
+ * Whether a use should complete s now (rather than evaluate afresh): always when building; else
+ * when that costs no more than one evaluation, and not at the first use (a geometry edit's picture,
+ * which should not wait for more than its own evaluation: one pass for every solution still costs
+ * more than one for the combined densities).
+ */
 function shouldComplete(s: Stored, level: Level3d, ev: Evaluator): boolean {
-  return building === 'build' || workLeft(s, level, ev) <= s.pts.length / 3;
+  return building === 'build' || (s.last !== null && workLeft(s, level, ev) <= s.pts.length / 3);
 }
 
 /** Computes what s lacks, chunk by chunk; false when cancelled (what was computed is kept). */
