@@ -1,12 +1,14 @@
 // Latency of the language server, measured through the real server process over stdio
-// (`npm run bench -- lsp`, bundled to dist/bench-lsp.js). For each sample in samples/:
+// (`npm run bench -- lsp`, bundled to dist/bench-lsp.js; `node dist/bench-lsp.js NAME...` measures
+// only those). For each sample in samples/, and a 5,000-panel scene made from one (issue 4):
 // - keystroke → diagnostics: an edit, until its version's diagnostics arrive;
-// - keystroke → new picture: an edit of a length (a geometry change), until the full result of its
-//   version arrives, raw and with the debounce (setting solveDelay) subtracted; the coarse picture too;
-// - drive-only edit → new picture: one potential changed, until the full result (the engine reuses
-//   the factorization), raw and without the debounce.
+// - keystroke → new picture: an edit of a length (a geometry change), until the coarse and the full
+//   result of its version arrive, with the debounce (setting solveDelay) subtracted;
+// - drive-only edit → new picture: one potential changed (the engine reuses the factorization),
+//   until its first picture (coarse, unless the worker skips it) and its full one, without the
+//   debounce; the first drive edit after the geometry edits on its own.
 // Targets on this machine: diagnostics p95 < 50 ms; a new picture p95 < 300 ms for scenes up to
-// 2,000 panels; a drive-only edit < 50 ms. Prints a table.
+// 2,000 panels and at 5,000 panels; a drive-only edit < 50 ms. Prints a table with the load average.
 import { readdirSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { cpus, loadavg } from 'node:os';
