@@ -5,6 +5,11 @@ import { buildPanelSolver } from '../../server/src/engine/fast/panel-solver';
 import { FieldEvaluator } from '../../server/src/engine/fast/field-evaluator';
 import { closeFastPool, fastThreads, setFastWorkerScript } from '../../server/src/engine/fast/pool';
 import { boxSurface, icosphere, joinMeshes } from './fixtures';
+import { assembleDense, createSystem } from '../../server/src/engine/bem3d/system';
+import { imageSet } from '../../server/src/engine/bem3d/images';
+import '../../server/src/engine/fast/bem3d';
+
+const ZERO = { start: { line: 0, character: 0 }, end: { line: 0, character: 0 } };
 
 // Worker threads cannot load TypeScript: bundle the worker entry the way the build does.
 const code = buildSync({ entryPoints: ['server/src/engine/fast/worker.ts'], bundle: true, platform: 'node', format: 'cjs', write: false }).outputFiles[0].text;
@@ -67,5 +72,22 @@ describe('evaluation with a grounded plane', () => {
       expect(Math.abs(phi)).toBeLessThan(1e-12 * Math.abs(above[0]));
       expect(Math.hypot(ex, ey)).toBeLessThan(1e-12 * Math.hypot(above[1], above[2], above[3]));
     }
+  });
+});
+
+describe('dense rows on two threads', () => {
+  it('fills the dense 3D matrix on two threads exactly as on one, ground plane included', () => {
+    // Importing the fast module registers its row filler with the dense assembly (bem3d/system.ts).
+    const images = imageSet([{ axis: 'z', at: -1.5, range: ZERO }]).images;
+    setFastWorkerScript(null);
+    const one = assembleDense(createSystem(mesh, images))!;
+    setFastWorkerScript({ code });
+    expect(fastThreads()).toBe(2);
+    const two = assembleDense(createSystem(mesh, images))!;
+    expect(two.buffer instanceof SharedArrayBuffer).toBe(true);
+    let same = true;
+    for (let k = 0; k < one.length; k++) if (one[k] !== two[k]) same = false;
+    expect(same).toBe(true);
+    expect(one.some((v) => v !== 0)).toBe(true);
   });
 });

@@ -77,7 +77,8 @@ export interface MatrixReuse {
  */
 export function assembleDense(sys: Bem3dSystem, isCancelled?: () => boolean, reuse?: MatrixReuse | null): Float64Array | null {
   const n = sys.n;
-  const A = new Float64Array(n * n);
+  // Shared memory, so that worker threads can fill rows of it in place (fillRows).
+  const A = new Float64Array(new SharedArrayBuffer(8 * n * n));
   const P = sys.panels;
   const p = sys.points;
   const { mesh, images } = sys;
@@ -154,10 +155,23 @@ export function assembleDense(sys: Bem3dSystem, isCancelled?: () => boolean, reu
     else whole.push(i);
   }
   for (const i of copied) copyRow(A, i * n, reuse!.matrix, from![i] * reuse!.n);
-  if (copied.length > 0 && !fillDenseRows(P, p, images, Int32Array.from(copied), A, isCancelled, fresh!)) return null;
-  if (!fillDenseRows(P, p, images, Int32Array.from(whole), A, isCancelled)) return null;
+  if (copied.length > 0 && !fillRows(P, p, images, Int32Array.from(copied), A, isCancelled, fresh!)) return null;
+  if (!fillRows(P, p, images, Int32Array.from(whole), A, isCancelled)) return null;
   sys.thinRows = thinRows;
   return A;
+}
+
+/** Fills rows of a dense matrix: fillDenseRows here, or on several threads once registered. */
+export type RowFiller = typeof fillDenseRows;
+
+let fillRows: RowFiller = fillDenseRows;
+
+/**
+ * Fast-solver hook (owned by server/src/engine/fast/bem3d.ts): lets the fast module's worker
+ * threads fill rows of the shared dense matrix (fast/jobs.ts runRows).
+ */
+export function registerRowFiller(filler: RowFiller): void {
+  fillRows = filler;
 }
 
 /**

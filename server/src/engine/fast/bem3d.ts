@@ -4,9 +4,14 @@
 //
 // Hooks in files owned by others (each marked "fast-solver hook" there):
 // - linear/solver.ts chooseSolver: systems above FAST_MIN_UNKNOWNS go to 'hmatrix-gmres' once registered;
-// - bem3d/field.ts potentialAndField: imports this module and asks fastPotentialAndGradient first.
+// - bem3d/field.ts potentialAndField: imports this module and asks fastPotentialAndGradient first;
+// - bem3d/system.ts registerRowFiller: dense rows are filled on all threads (fillRowsParallel).
 import { registerBem3dOperator } from '../bem3d/operator';
-import { INV_4PI, type Bem3dSystem, type EvalMode } from '../bem3d/system';
+import { fillDenseRows, INV_4PI, registerRowFiller, type Bem3dSystem, type EvalMode } from '../bem3d/system';
+import type { Image } from '../bem3d/images';
+import type { Panels } from '../kernels/triangle';
+import { runRows, type RowsJob } from './jobs';
+import { fastThreads, runParallel, shared } from './pool';
 import { FAST_MIN_UNKNOWNS, gmresSolver, registerSolver, type LinearOperator, type LinearSolver } from '../linear/solver';
 import type { FastSolver } from './fast-solver';
 import { FieldEvaluator } from './field-evaluator';
@@ -60,6 +65,41 @@ export function fastLinearSolver(op: LinearOperator): LinearSolver {
   return solver;
 }
 
+/** Below this many rows × columns a dense fill stays on the calling thread (starting threads costs more). */
+const PARALLEL_ROWS_MIN_ENTRIES = 2e5;
+
+/**
+ * fillDenseRows on all threads: workers take chunks of rows from a shared counter and write them
+ * into the shared matrix in place. Needs A in a SharedArrayBuffer; anything else, or one thread,
+ * fills here. False when cancelled.
+ */
+export function fillRowsParallel(P: Panels, points: Float64Array, images: readonly Image[], rows: Int32Array, A: Float64Array, isCancelled?: () => boolean, cols?: Int32Array): boolean {
+  const threads = fastThreads();
+  const entries = rows.length * (cols ? cols.length : P.count);
+  if (threads < 2 || !(A.buffer instanceof SharedArrayBuffer) || entries < PARALLEL_ROWS_MIN_ENTRIES) return fillDenseRows(P, points, images, rows, A, isCancelled, cols);
+  const job: RowsJob = {
+    kind: 'rows',
+    vertices: shared(P.vertices),
+    triangles: shared(Uint32Array.from({ length: 3 * P.count }, (_, k) => k)),
+    points: shared(points),
+    images: images.map((im) => ({ sign: im.sign, flip: [...im.flip] as Image['flip'], shift: [...im.shift] as Image['shift'] })),
+    rows: shared(rows),
+    cols: cols ? shared(cols) : null,
+    A,
+    counter: new Int32Array(new SharedArrayBuffer(4)),
+    chunk: 8,
+  };
+  let finished = true;
+  const replies = runParallel(threads, job as unknown as Record<string, unknown>, () => {
+    finished = runRows(job, P, isCancelled);
+  });
+  if (!finished) return false;
+  // A worker failed: the rows it took may be unfilled, so fill them all here (the reference path).
+  if (!replies) return fillDenseRows(P, points, images, rows, A, isCancelled, cols);
+  return true;
+}
+
+registerRowFiller(fillRowsParallel);
 registerBem3dOperator(FAST_KIND, (sys, isCancelled) => fastOperator(sys, isCancelled));
 registerSolver(FAST_KIND, false, fastLinearSolver);
 

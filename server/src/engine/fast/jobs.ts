@@ -5,6 +5,8 @@ import { preparePanels, type Panels } from '../kernels/triangle';
 import { fillBlock, packProduct, PackWriter, type BlockPack, type BlockTask } from './hmatrix';
 import { panelEntrySource, type ImageMap } from './panel-entries';
 import { evaluateTree, type PanelTree } from './treecode';
+import { fillDenseRows } from '../bem3d/system';
+import type { Image } from '../bem3d/images';
 
 /** What a thread needs to fill blocks of the panel matrix: plain arrays only (they cross threads). */
 export interface AssembleJob {
@@ -103,6 +105,37 @@ export function productItems(packs: BlockPack[], pieces: number): Int32Array {
     if (first < p.count) items.push(q, first, p.count);
   });
   return Int32Array.from(items);
+}
+
+/** Rows of the dense 3D matrix to fill in place (bem3d/system.ts fillDenseRows), shared between threads. */
+export interface RowsJob {
+  kind: 'rows';
+  vertices: Float64Array;
+  triangles: Uint32Array;
+  points: Float64Array;
+  images: Image[];
+  rows: Int32Array;
+  /** Only these columns (all when null). */
+  cols: Int32Array | null;
+  /** The shared n×n matrix. */
+  A: Float64Array;
+  counter: Int32Array;
+  chunk: number;
+}
+
+/** Fills chunks of rows until none are left; on cancellation pushes the counter past the end. False when cancelled. */
+export function runRows(job: RowsJob, P?: Panels, isCancelled?: () => boolean): boolean {
+  const panels = P ?? preparePanels({ vertices: job.vertices, triangles: job.triangles });
+  const count = job.rows.length;
+  for (;;) {
+    if (isCancelled?.()) {
+      Atomics.store(job.counter, 0, count);
+      return false;
+    }
+    const first = Atomics.add(job.counter, 0, job.chunk);
+    if (first >= count) return true;
+    fillDenseRows(panels, job.points, job.images, job.rows.subarray(first, Math.min(count, first + job.chunk)), job.A, undefined, job.cols ?? undefined);
+  }
 }
 
 /** What a thread needs to evaluate the treecode: the tree's arrays (shared) and the points. */
