@@ -20,7 +20,7 @@
 // change in drives, which is kept, so that a repeated edit of the same drive costs none.
 import { insideElectrode } from '../../../grammar/geometry';
 import type { Diagnostic, Scene3d } from '../../../grammar/scene';
-import { addFreeCharges, potentialAndField, type FieldState3d } from './bem3d/field';
+import { addFreeCharges, potentialAndField, surfaceFields, type FieldState3d } from './bem3d/field';
 import type { FreeSolution, Level3d } from './bem3d/level';
 import { GRID_FAR_RATIO, INV_4PI, type EvalMode } from './bem3d/system';
 import { reflect, type Image } from './bem3d/images';
@@ -573,12 +573,15 @@ export function superposedProbes(scene: Scene3d, level: Level3d, images: Image[]
 /**
  * Surface field per panel (as bem3d/field.ts surfaceFields) by superposition: the field at thin
  * panels' centroids is stored per solution (its normal component taken when summed); closed panels
- * read |x| directly.
+ * read |x| directly. A system that keeps its thin panels' field rows (dense assembly) is summed
+ * afresh through them instead, which is as cheap.
  */
 export function superposedSurfaceFields(scene: Scene3d, level: Level3d, images: Image[], x: Float64Array, potentials: readonly number[]): Float64Array {
   const store = storeOf(level);
   const { mesh } = level.sys;
   const n = level.sys.n;
+  // Thin panels' field rows kept by the assembly: the fresh sum over them costs no more than summing stored values.
+  if (level.sys.thinRows) return surfaceFields({ sys: level.sys, x, charges: scene.charges, images, permittivity: scene.medium.permittivity });
   if (!store.thin) {
     const thin: number[] = [];
     for (let j = 0; j < n; j++) if (mesh.thin[j]) thin.push(j);
