@@ -42,8 +42,6 @@ interface Coarse {
   lu: Float64Array;
   pivot: Int32Array;
   AR: Float32Array;
-  y: Float64Array;
-  rp: Float64Array;
 }
 
 /**
@@ -151,7 +149,7 @@ function buildCoarse(H: HMatrix, start: Int32Array, size: Int32Array): Coarse {
     const I = owner[p] * G, o = p * G;
     for (let J = 0; J < G; J++) Ac[I + J] += AR[o + J];
   }
-  return { G, start, size, lu: Ac, pivot: luFactor(Ac, G), AR, y: new Float64Array(G), rp: new Float64Array(N) };
+  return { G, start, size, lu: Ac, pivot: luFactor(Ac, G), AR };
 }
 
 /**
@@ -159,33 +157,67 @@ function buildCoarse(H: HMatrix, start: Int32Array, size: Int32Array): Coarse {
  * z = M₁⁻¹·r′ + Rᵀ·y; without it, z = M₁⁻¹·r.
  */
 export function applyBlockJacobi(P: BlockJacobi, r: Float64Array, z: Float64Array): void {
+  applyBlockJacobiMany(P, [r], [z]);
+}
+
+/** zs[v] = M⁻¹·rs[v] for several vectors, with one pass over A·Rᵀ for each pair of them. */
+export function applyBlockJacobiMany(P: BlockJacobi, rs: Float64Array[], zs: Float64Array[]): void {
   const c = P.coarse;
-  let rr = r;
+  const K = rs.length;
+  let rr = rs;
+  let ys: Float64Array[] = [];
   if (c) {
-    const { G, y, rp, AR } = c;
-    for (let k = 0; k < G; k++) {
-      let s = 0;
-      for (let i = c.start[k], e = i + c.size[k]; i < e; i++) s += r[i];
-      y[k] = s;
+    const { G, AR } = c;
+    ys = rs.map((r) => {
+      const y = new Float64Array(G);
+      for (let k = 0; k < G; k++) {
+        let s = 0;
+        for (let i = c.start[k], e = i + c.size[k]; i < e; i++) s += r[i];
+        y[k] = s;
+      }
+      luSolve(c.lu, c.pivot, G, y, 0);
+      return y;
+    });
+    rr = rs.map((r) => Float64Array.from(r));
+    const N = rr[0].length;
+    for (let v = 0; v < K; v += 2) {
+      if (v + 1 < K) {
+        const y1 = ys[v], y2 = ys[v + 1], r1 = rr[v], r2 = rr[v + 1];
+        for (let p = 0; p < N; p++) {
+          let s1 = 0, s2 = 0;
+          const o = p * G;
+          for (let J = 0; J < G; J++) {
+            const a = AR[o + J];
+            s1 += a * y1[J];
+            s2 += a * y2[J];
+          }
+          r1[p] -= s1;
+          r2[p] -= s2;
+        }
+      } else {
+        const y1 = ys[v], r1 = rr[v];
+        for (let p = 0; p < N; p++) {
+          let s1 = 0;
+          const o = p * G;
+          for (let J = 0; J < G; J++) s1 += AR[o + J] * y1[J];
+          r1[p] -= s1;
+        }
+      }
     }
-    luSolve(c.lu, c.pivot, G, y, 0);
-    for (let p = 0; p < rp.length; p++) {
-      let s = 0;
-      const o = p * G;
-      for (let J = 0; J < G; J++) s += AR[o + J] * y[J];
-      rp[p] = r[p] - s;
+  }
+  for (let v = 0; v < K; v++) {
+    const z = zs[v], r = rr[v];
+    for (let k = 0; k < P.start.length; k++) {
+      const s0 = P.start[k], n = P.size[k];
+      for (let i = 0; i < n; i++) z[s0 + i] = r[s0 + i];
+      luSolve(P.lu[k], P.pivot[k], n, z, s0);
     }
-    rr = rp;
-  }
-  for (let k = 0; k < P.start.length; k++) {
-    const s0 = P.start[k], n = P.size[k];
-    for (let i = 0; i < n; i++) z[s0 + i] = rr[s0 + i];
-    luSolve(P.lu[k], P.pivot[k], n, z, s0);
-  }
-  if (!c) return;
-  for (let k = 0; k < c.G; k++) {
-    const v = c.y[k];
-    for (let i = c.start[k], e = i + c.size[k]; i < e; i++) z[i] += v;
+    if (!c) continue;
+    const y = ys[v];
+    for (let k = 0; k < c.G; k++) {
+      const val = y[k];
+      for (let i = c.start[k], e = i + c.size[k]; i < e; i++) z[i] += val;
+    }
   }
 }
 

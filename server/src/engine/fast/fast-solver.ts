@@ -3,7 +3,7 @@
 // sides are in the caller's numbering; the tree order is internal.
 import type { EntrySource } from './aca';
 import { buildClusterTree } from './cluster-tree';
-import { applyBlockJacobi, buildBlockJacobi, type BlockJacobi } from './block-jacobi';
+import { applyBlockJacobi, applyBlockJacobiMany, buildBlockJacobi, type BlockJacobi } from './block-jacobi';
 import { gmresMany } from '../linear/gmres';
 import { fillBlock, hmatrixStorage, packProduct, partitionBlocks, PackWriter, type BlockPack, type BlockTask, type HMatrix } from './hmatrix';
 
@@ -150,6 +150,7 @@ export function buildFastSolver(
       restart: o.restart,
       maxIterations: 1000,
       precondition,
+      preconditionMany: (rs: Float64Array[], zs: Float64Array[]) => applyBlockJacobiMany(P, rs, zs),
       isCancelled: control.isCancelled,
     });
     if (!rs) return null;
