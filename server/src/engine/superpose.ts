@@ -574,14 +574,12 @@ export function superposedProbes(scene: Scene3d, level: Level3d, images: Image[]
  * Surface field per panel (as bem3d/field.ts surfaceFields) by superposition: the field at thin
  * panels' centroids is stored per solution (its normal component taken when summed); closed panels
  * read |x| directly. A system that keeps its thin panels' field rows (dense assembly) is summed
- * afresh through them instead, which is as cheap.
+ * afresh through them until the stored values are complete.
  */
 export function superposedSurfaceFields(scene: Scene3d, level: Level3d, images: Image[], x: Float64Array, potentials: readonly number[]): Float64Array {
   const store = storeOf(level);
   const { mesh } = level.sys;
   const n = level.sys.n;
-  // Thin panels' field rows kept by the assembly: the fresh sum over them costs no more than summing stored values.
-  if (level.sys.thinRows) return surfaceFields({ sys: level.sys, x, charges: scene.charges, images, permittivity: scene.medium.permittivity });
   if (!store.thin) {
     const thin: number[] = [];
     for (let j = 0; j < n; j++) if (mesh.thin[j]) thin.push(j);
@@ -591,6 +589,12 @@ export function superposedSurfaceFields(scene: Scene3d, level: Level3d, images: 
   }
   const s = store.thin;
   const state: FieldState3d = { sys: level.sys, x, charges: scene.charges, images, permittivity: scene.medium.permittivity };
+  // Thin panels' field rows kept by the assembly: until the stored values are complete (a build
+  // does that), the fresh sum over the rows is the cheapest way.
+  if (level.sys.thinRows && building === 'stored-only' && !isComplete(s, level)) {
+    s.use = { images, charges: scene.charges, ev: { tree: null, mode: 'precise' }, at: store.uses };
+    return surfaceFields(state);
+  }
   const values = valuesFor(s, level, images, scene, potentials, { tree: null, mode: 'precise' }, () => state)!;
   const E = new Float64Array(n);
   let i = 0;
