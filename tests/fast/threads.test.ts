@@ -7,7 +7,8 @@ import { closeFastPool, fastThreads, setFastWorkerScript } from '../../server/sr
 import { boxSurface, icosphere, joinMeshes } from './fixtures';
 import { assembleDense, createSystem } from '../../server/src/engine/bem3d/system';
 import { imageSet } from '../../server/src/engine/bem3d/images';
-import '../../server/src/engine/fast/bem3d';
+import { denseProductParallel } from '../../server/src/engine/fast/bem3d';
+import { denseProductHere } from '../../server/src/engine/linear/solver';
 
 const ZERO = { start: { line: 0, character: 0 }, end: { line: 0, character: 0 } };
 
@@ -89,5 +90,20 @@ describe('dense rows on two threads', () => {
     for (let k = 0; k < one.length; k++) if (one[k] !== two[k]) same = false;
     expect(same).toBe(true);
     expect(one.some((v) => v !== 0)).toBe(true);
+  });
+});
+
+describe('dense products on two threads', () => {
+  it('give exactly the one-thread product for 1 to 5 vectors', () => {
+    setFastWorkerScript({ code });
+    const n = 503;
+    const A = new Float64Array(new SharedArrayBuffer(8 * n * n)).map((_, k) => Math.sin(k * 0.013) + (k % (n + 1) === 0 ? 5 : 0));
+    for (let K = 1; K <= 5; K++) {
+      const xs = Array.from({ length: K }, (_, v) => Float64Array.from({ length: n }, (_, i) => Math.cos(i * 0.1 + v)));
+      const one = xs.map(() => new Float64Array(n)), two = xs.map(() => new Float64Array(n));
+      denseProductHere(n, A, xs, one);
+      denseProductParallel(n, A, xs, two);
+      for (let v = 0; v < K; v++) expect(Array.from(two[v])).toEqual(Array.from(one[v]));
+    }
   });
 });

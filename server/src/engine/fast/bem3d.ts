@@ -5,14 +5,15 @@
 // Hooks in files owned by others (each marked "fast-solver hook" there):
 // - linear/solver.ts chooseSolver: systems above FAST_MIN_UNKNOWNS go to 'hmatrix-gmres' once registered;
 // - bem3d/field.ts potentialAndField: imports this module and asks fastPotentialAndGradient first;
-// - bem3d/system.ts registerRowFiller: dense rows are filled on all threads (fillRowsParallel).
+// - bem3d/system.ts registerRowFiller: dense rows are filled on all threads (fillRowsParallel);
+// - linear/solver.ts registerDenseProduct: dense products share their rows between threads.
 import { registerBem3dOperator } from '../bem3d/operator';
 import { fillDenseRows, INV_4PI, registerRowFiller, type Bem3dSystem, type EvalMode } from '../bem3d/system';
 import type { Image } from '../bem3d/images';
 import type { Panels } from '../kernels/triangle';
-import { runRows, type RowsJob } from './jobs';
+import { runDenseProduct, runRows, type DenseProductJob, type RowsJob } from './jobs';
 import { fastThreads, runParallel, shared } from './pool';
-import { FAST_MIN_UNKNOWNS, gmresSolver, registerSolver, type LinearOperator, type LinearSolver } from '../linear/solver';
+import { denseProductHere, FAST_MIN_UNKNOWNS, gmresSolver, registerDenseProduct, registerSolver, type LinearOperator, type LinearSolver } from '../linear/solver';
 import type { FastSolver } from './fast-solver';
 import { FieldEvaluator } from './field-evaluator';
 import { buildPanelSolver } from './panel-solver';
@@ -99,7 +100,24 @@ export function fillRowsParallel(P: Panels, points: Float64Array, images: readon
   return true;
 }
 
+/** Below this many unknowns a dense product stays on the calling thread. */
+const PARALLEL_PRODUCT_MIN_UNKNOWNS = 400;
+
+/** The dense product with rows shared between threads; the matrix must be in shared memory. */
+export function denseProductParallel(n: number, A: Float64Array, xs: Float64Array[], ys: Float64Array[]): void {
+  const threads = fastThreads();
+  if (threads < 2 || n < PARALLEL_PRODUCT_MIN_UNKNOWNS || !(A.buffer instanceof SharedArrayBuffer)) return denseProductHere(n, A, xs, ys);
+  const K = xs.length;
+  const sx = new Float64Array(new SharedArrayBuffer(8 * K * n));
+  xs.forEach((x, v) => sx.set(x, v * n));
+  const job: DenseProductJob = { kind: 'dense-product', A, n, K, xs: sx, ys: new Float64Array(new SharedArrayBuffer(8 * K * n)), counter: new Int32Array(new SharedArrayBuffer(4)), chunk: 32 };
+  const replies = runParallel(threads, job as unknown as Record<string, unknown>, () => runDenseProduct(job));
+  if (!replies) return denseProductHere(n, A, xs, ys);
+  ys.forEach((y, v) => y.set(job.ys.subarray(v * n, (v + 1) * n)));
+}
+
 registerRowFiller(fillRowsParallel);
+registerDenseProduct(denseProductParallel);
 registerBem3dOperator(FAST_KIND, (sys, isCancelled) => fastOperator(sys, isCancelled));
 registerSolver(FAST_KIND, false, fastLinearSolver);
 

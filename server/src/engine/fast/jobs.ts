@@ -6,6 +6,7 @@ import { fillBlock, packProduct, PackWriter, type BlockPack, type BlockTask } fr
 import { panelEntrySource, type ImageMap } from './panel-entries';
 import { evaluateTree, type PanelTree } from './treecode';
 import { fillDenseRows } from '../bem3d/system';
+import { productMany } from '../linear/solver';
 import type { Image } from '../bem3d/images';
 
 /** What a thread needs to fill blocks of the panel matrix: plain arrays only (they cross threads). */
@@ -135,6 +136,32 @@ export function runRows(job: RowsJob, P?: Panels, isCancelled?: () => boolean): 
     const first = Atomics.add(job.counter, 0, job.chunk);
     if (first >= count) return true;
     fillDenseRows(panels, job.points, job.images, job.rows.subarray(first, Math.min(count, first + job.chunk)), job.A, undefined, job.cols ?? undefined);
+  }
+}
+
+/** A dense product ys = A·xs of K stacked vectors, rows shared between threads (each writes its own rows). */
+export interface DenseProductJob {
+  kind: 'dense-product';
+  /** The shared n×n row-major matrix. */
+  A: Float64Array;
+  n: number;
+  K: number;
+  /** K vectors of n each (shared). */
+  xs: Float64Array;
+  ys: Float64Array;
+  counter: Int32Array;
+  chunk: number;
+}
+
+export function runDenseProduct(job: DenseProductJob): void {
+  const { A, n, K, xs, ys, chunk } = job;
+  const x = Array.from({ length: K }, (_, v) => xs.subarray(v * n, (v + 1) * n));
+  for (;;) {
+    const r0 = Atomics.add(job.counter, 0, chunk);
+    if (r0 >= n) return;
+    const r1 = Math.min(n, r0 + chunk);
+    const y = Array.from({ length: K }, (_, v) => ys.subarray(v * n + r0, v * n + r1));
+    productMany(r1 - r0, n, A.subarray(r0 * n, r1 * n), x, y);
   }
 }
 

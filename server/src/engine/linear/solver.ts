@@ -48,9 +48,24 @@ export function denseOperator(n: number, matrix: Float64Array): LinearOperator {
   };
 }
 
-/** ys[k] ← A·xs[k] for all k, A square n×n row-major (see productMany). */
+/** ys[k] ← A·xs[k] for all k, A square n×n row-major (see productMany), here or on several threads. */
 export function denseProductMany(n: number, A: Float64Array, xs: Float64Array[], ys: Float64Array[]): void {
+  denseProduct(n, A, xs, ys);
+}
+
+/** The dense product on this thread. */
+export function denseProductHere(n: number, A: Float64Array, xs: Float64Array[], ys: Float64Array[]): void {
   productMany(n, n, A, xs, ys);
+}
+
+let denseProduct: typeof denseProductHere = denseProductHere;
+
+/**
+ * Fast-solver hook (owned by server/src/engine/fast/bem3d.ts): lets worker threads share the rows
+ * of a dense product when the matrix lives in shared memory.
+ */
+export function registerDenseProduct(product: typeof denseProductHere): void {
+  denseProduct = product;
 }
 
 /**
