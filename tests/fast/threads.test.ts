@@ -77,19 +77,26 @@ describe('evaluation with a grounded plane', () => {
 });
 
 describe('dense rows on two threads', () => {
-  it('fills the dense 3D matrix on two threads exactly as on one, ground plane included', () => {
-    // Importing the fast module registers its row filler with the dense assembly (bem3d/system.ts).
+  it('fills the dense 3D matrix on two threads exactly as on one, ground plane included, with and without thin panels', () => {
+    // Importing the fast module registers its row fillers with the dense assembly (bem3d/system.ts).
     const images = imageSet([{ axis: 'z', at: -1.5, range: ZERO }]).images;
-    setFastWorkerScript(null);
-    const one = assembleDense(createSystem(mesh, images))!;
-    setFastWorkerScript({ code });
-    expect(fastThreads()).toBe(2);
-    const two = assembleDense(createSystem(mesh, images))!;
-    expect(two.buffer instanceof SharedArrayBuffer).toBe(true);
-    let same = true;
-    for (let k = 0; k < one.length; k++) if (one[k] !== two[k]) same = false;
-    expect(same).toBe(true);
-    expect(one.some((v) => v !== 0)).toBe(true);
+    // Every panel marked thin (as a plate's would be): their rows carry the normal field too.
+    for (const thin of [mesh.thin, new Uint8Array(mesh.thin.length).fill(1)]) {
+      const m = { ...mesh, thin };
+      setFastWorkerScript(null);
+      const sysOne = createSystem(m, images);
+      const one = assembleDense(sysOne)!;
+      setFastWorkerScript({ code });
+      expect(fastThreads()).toBe(2);
+      const sysTwo = createSystem(m, images);
+      const two = assembleDense(sysTwo)!;
+      expect(two.buffer instanceof SharedArrayBuffer).toBe(true);
+      const same = (a: Float64Array, b: Float64Array) => a.length === b.length && a.every((v, k) => v === b[k]);
+      expect(same(one, two)).toBe(true);
+      expect(one.some((v) => v !== 0)).toBe(true);
+      expect(same(sysOne.thinRows!.rows, sysTwo.thinRows!.rows)).toBe(true);
+      if (thin[0]) expect(sysOne.thinRows!.rows.some((v) => v !== 0)).toBe(true);
+    }
   });
 });
 

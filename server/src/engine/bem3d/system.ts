@@ -91,7 +91,7 @@ export function assembleDense(sys: Bem3dSystem, isCancelled?: () => boolean, reu
   if (thin.length * n > THIN_ROWS_MAX_ENTRIES) thin = [];
   const isThin = new Uint8Array(n);
   for (const i of thin) isThin[i] = 1;
-  const thinRows: ThinRows = { panels: Int32Array.from(thin), rows: new Float64Array(thin.length * n) };
+  const thinRows: ThinRows = { panels: Int32Array.from(thin), rows: new Float64Array(new SharedArrayBuffer(8 * thin.length * n)) };
   // Reused rows and columns (kept panels), and the columns every reused row still needs (new panels).
   const from = reuse?.from ?? null;
   const fresh = from ? Int32Array.from({ length: n }, (_, j) => j).filter((j) => from[j] < 0) : null;
@@ -102,50 +102,22 @@ export function assembleDense(sys: Bem3dSystem, isCancelled?: () => boolean, reu
     for (let k = 0; k < kept.length; k++) target[at + kept[k]] = source[sourceAt + from![kept[k]]];
   };
 
-  const I = images.length;
-  const sign = Float64Array.from(images, (im) => im.sign);
-  const rx = new Float64Array(I), ry = new Float64Array(I), rz = new Float64Array(I);
-  // Per image, the factors of the normal gradient through the reflection (the chain rule:
-  // ∂/∂x_c of f(flip·x + shift) = flip_c·(∂f)_c).
-  const gnx = new Float64Array(I), gny = new Float64Array(I), gnz = new Float64Array(I);
-  const r = [0, 0, 0];
-  const g = new Float64Array(4);
+  // Thin rows: kept ones whose earlier matrix had them copy their kept columns and compute the new
+  // ones; the others compute every column.
+  const thinFresh: number[] = [], thinAll: number[] = [];
   for (let t = 0; t < thin.length; t++) {
-    if ((t & 63) === 0 && isCancelled?.()) return null;
-    const i = thin[t], row = i * n, out = t * n;
-    // A kept panel whose earlier matrix had its rows: copy them, compute the new columns only.
+    const i = thin[t];
     const oi = from ? from[i] : -1;
     const ot = oi >= 0 ? oldThin[oi] : -1;
-    let cols: Int32Array | null = null;
     if (ot >= 0) {
-      copyRow(A, row, reuse!.matrix, oi * reuse!.n);
-      copyRow(thinRows.rows, out, reuse!.thinRows!.rows, ot * reuse!.n);
-      cols = fresh;
-    }
-    const nx = mesh.normal[3 * i], ny = mesh.normal[3 * i + 1], nz = mesh.normal[3 * i + 2];
-    for (let k = 0; k < I; k++) {
-      reflect(images[k], p[3 * i], p[3 * i + 1], p[3 * i + 2], r);
-      rx[k] = r[0];
-      ry[k] = r[1];
-      rz[k] = r[2];
-      gnx[k] = images[k].sign * images[k].flip[0] * nx;
-      gny[k] = images[k].sign * images[k].flip[1] * ny;
-      gnz[k] = images[k].sign * images[k].flip[2] * nz;
-    }
-    // The potential and its normal gradient in one pass.
-    const count = cols ? cols.length : n;
-    for (let m = 0; m < count; m++) {
-      const j = cols ? cols[m] : m;
-      let v = 0, gn = 0;
-      for (let k = 0; k < I; k++) {
-        panelPotentialAndGradient(P, j, rx[k], ry[k], rz[k], g);
-        v += sign[k] * g[0];
-        gn += gnx[k] * g[1] + gny[k] * g[2] + gnz[k] * g[3];
-      }
-      A[row + j] = INV_4PI * v;
-      thinRows.rows[out + j] = INV_4PI * gn;
-    }
+      copyRow(A, i * n, reuse!.matrix, oi * reuse!.n);
+      copyRow(thinRows.rows, t * n, reuse!.thinRows!.rows, ot * reuse!.n);
+      thinFresh.push(t);
+    } else thinAll.push(t);
   }
+  const thinPanels = thinRows.panels;
+  if (thinFresh.length > 0 && !fillThin(P, p, mesh.normal, images, thinPanels, Int32Array.from(thinFresh), A, thinRows.rows, isCancelled, fresh!)) return null;
+  if (!fillThin(P, p, mesh.normal, images, thinPanels, Int32Array.from(thinAll), A, thinRows.rows, isCancelled)) return null;
   // The other rows: kept ones copy their kept columns and compute the rest; new ones compute all.
   const copied: number[] = [];
   const whole: number[] = [];
@@ -172,6 +144,72 @@ let fillRows: RowFiller = fillDenseRows;
  */
 export function registerRowFiller(filler: RowFiller): void {
   fillRows = filler;
+}
+
+/** Fills thin panels' rows and their normal-field rows: fillThinRows here, or on several threads. */
+export type ThinRowFiller = typeof fillThinRows;
+
+let fillThin: ThinRowFiller = fillThinRows;
+
+/** Fast-solver hook (owned by server/src/engine/fast/bem3d.ts), as registerRowFiller. */
+export function registerThinRowFiller(filler: ThinRowFiller): void {
+  fillThin = filler;
+}
+
+/**
+ * For the thin panels thinPanels[t], t in `slots`: row thinPanels[t] of A (potential entries) and
+ * row t of `gradient` (the normal field entries, n each), in the given columns (all when absent).
+ * Plain arrays only, so that a worker thread can fill rows of shared matrices. False when cancelled.
+ */
+export function fillThinRows(
+  P: Panels,
+  points: Float64Array,
+  normals: Float64Array,
+  images: readonly Image[],
+  thinPanels: Int32Array,
+  slots: Int32Array,
+  A: Float64Array,
+  gradient: Float64Array,
+  isCancelled?: () => boolean,
+  cols?: Int32Array,
+): boolean {
+  const n = P.count;
+  const I = images.length;
+  const sign = Float64Array.from(images, (im) => im.sign);
+  const rx = new Float64Array(I), ry = new Float64Array(I), rz = new Float64Array(I);
+  // Per image, the factors of the normal gradient through the reflection (the chain rule:
+  // ∂/∂x_c of f(flip·x + shift) = flip_c·(∂f)_c).
+  const gnx = new Float64Array(I), gny = new Float64Array(I), gnz = new Float64Array(I);
+  const r = [0, 0, 0];
+  const g = new Float64Array(4);
+  for (let s = 0; s < slots.length; s++) {
+    if ((s & 63) === 0 && isCancelled?.()) return false;
+    const t = slots[s], i = thinPanels[t], row = i * n, out = t * n;
+    const nx = normals[3 * i], ny = normals[3 * i + 1], nz = normals[3 * i + 2];
+    for (let k = 0; k < I; k++) {
+      reflect(images[k], points[3 * i], points[3 * i + 1], points[3 * i + 2], r);
+      rx[k] = r[0];
+      ry[k] = r[1];
+      rz[k] = r[2];
+      gnx[k] = images[k].sign * images[k].flip[0] * nx;
+      gny[k] = images[k].sign * images[k].flip[1] * ny;
+      gnz[k] = images[k].sign * images[k].flip[2] * nz;
+    }
+    // The potential and its normal gradient in one pass.
+    const count = cols ? cols.length : n;
+    for (let m = 0; m < count; m++) {
+      const j = cols ? cols[m] : m;
+      let v = 0, gn = 0;
+      for (let k = 0; k < I; k++) {
+        panelPotentialAndGradient(P, j, rx[k], ry[k], rz[k], g);
+        v += sign[k] * g[0];
+        gn += gnx[k] * g[1] + gny[k] * g[2] + gnz[k] * g[3];
+      }
+      A[row + j] = INV_4PI * v;
+      gradient[out + j] = INV_4PI * gn;
+    }
+  }
+  return true;
 }
 
 /**

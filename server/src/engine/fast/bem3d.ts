@@ -5,10 +5,10 @@
 // Hooks in files owned by others (each marked "fast-solver hook" there):
 // - linear/solver.ts chooseSolver: systems above FAST_MIN_UNKNOWNS go to 'hmatrix-gmres' once registered;
 // - bem3d/field.ts potentialAndField: imports this module and asks fastPotentialAndGradient first;
-// - bem3d/system.ts registerRowFiller: dense rows are filled on all threads (fillRowsParallel);
+// - bem3d/system.ts registerRowFiller, registerThinRowFiller: dense rows are filled on all threads;
 // - linear/solver.ts registerDenseProduct: dense products share their rows between threads.
 import { registerBem3dOperator } from '../bem3d/operator';
-import { fillDenseRows, INV_4PI, registerRowFiller, type Bem3dSystem, type EvalMode } from '../bem3d/system';
+import { fillDenseRows, fillThinRows, INV_4PI, registerRowFiller, registerThinRowFiller, type Bem3dSystem, type EvalMode } from '../bem3d/system';
 import type { Image } from '../bem3d/images';
 import type { Panels } from '../kernels/triangle';
 import { runDenseProduct, runRows, type DenseProductJob, type RowsJob } from './jobs';
@@ -75,9 +75,42 @@ const PARALLEL_ROWS_MIN_ENTRIES = 2e5;
  * fills here. False when cancelled.
  */
 export function fillRowsParallel(P: Panels, points: Float64Array, images: readonly Image[], rows: Int32Array, A: Float64Array, isCancelled?: () => boolean, cols?: Int32Array): boolean {
+  const here = () => fillDenseRows(P, points, images, rows, A, isCancelled, cols);
+  return rowsParallel(P, points, images, rows, A, null, here, isCancelled, cols);
+}
+
+/** fillThinRows on all threads, as fillRowsParallel (the normal-field rows must be shared too). */
+export function fillThinRowsParallel(
+  P: Panels,
+  points: Float64Array,
+  normals: Float64Array,
+  images: readonly Image[],
+  thinPanels: Int32Array,
+  slots: Int32Array,
+  A: Float64Array,
+  gradient: Float64Array,
+  isCancelled?: () => boolean,
+  cols?: Int32Array,
+): boolean {
+  const here = () => fillThinRows(P, points, normals, images, thinPanels, slots, A, gradient, isCancelled, cols);
+  if (!(gradient.buffer instanceof SharedArrayBuffer)) return here();
+  return rowsParallel(P, points, images, slots, A, { panels: shared(thinPanels), normals: shared(normals), gradient }, here, isCancelled, cols);
+}
+
+function rowsParallel(
+  P: Panels,
+  points: Float64Array,
+  images: readonly Image[],
+  rows: Int32Array,
+  A: Float64Array,
+  thin: RowsJob['thin'],
+  here: () => boolean,
+  isCancelled?: () => boolean,
+  cols?: Int32Array,
+): boolean {
   const threads = fastThreads();
   const entries = rows.length * (cols ? cols.length : P.count);
-  if (threads < 2 || !(A.buffer instanceof SharedArrayBuffer) || entries < PARALLEL_ROWS_MIN_ENTRIES) return fillDenseRows(P, points, images, rows, A, isCancelled, cols);
+  if (threads < 2 || !(A.buffer instanceof SharedArrayBuffer) || entries < PARALLEL_ROWS_MIN_ENTRIES) return here();
   const job: RowsJob = {
     kind: 'rows',
     vertices: shared(P.vertices),
@@ -87,6 +120,7 @@ export function fillRowsParallel(P: Panels, points: Float64Array, images: readon
     rows: shared(rows),
     cols: cols ? shared(cols) : null,
     A,
+    thin,
     counter: new Int32Array(new SharedArrayBuffer(4)),
     chunk: 8,
   };
@@ -96,7 +130,7 @@ export function fillRowsParallel(P: Panels, points: Float64Array, images: readon
   });
   if (!finished) return false;
   // A worker failed: the rows it took may be unfilled, so fill them all here (the reference path).
-  if (!replies) return fillDenseRows(P, points, images, rows, A, isCancelled, cols);
+  if (!replies) return here();
   return true;
 }
 
@@ -117,6 +151,7 @@ export function denseProductParallel(n: number, A: Float64Array, xs: Float64Arra
 }
 
 registerRowFiller(fillRowsParallel);
+registerThinRowFiller(fillThinRowsParallel);
 registerDenseProduct(denseProductParallel);
 registerBem3dOperator(FAST_KIND, (sys, isCancelled) => fastOperator(sys, isCancelled));
 registerSolver(FAST_KIND, false, fastLinearSolver);

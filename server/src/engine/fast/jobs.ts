@@ -5,7 +5,7 @@ import { preparePanels, type Panels } from '../kernels/triangle';
 import { fillBlock, packProduct, PackWriter, type BlockPack, type BlockTask } from './hmatrix';
 import { panelEntrySource, type ImageMap } from './panel-entries';
 import { evaluateTree, type PanelTree } from './treecode';
-import { fillDenseRows } from '../bem3d/system';
+import { fillDenseRows, fillThinRows } from '../bem3d/system';
 import { productMany } from '../linear/solver';
 import type { Image } from '../bem3d/images';
 
@@ -120,6 +120,11 @@ export interface RowsJob {
   cols: Int32Array | null;
   /** The shared n×n matrix. */
   A: Float64Array;
+  /**
+   * Thin panels' rows instead (bem3d/system.ts fillThinRows): `rows` then holds slots t of
+   * thinPanels, and the normal-field rows go to `gradient` (shared).
+   */
+  thin: { panels: Int32Array; normals: Float64Array; gradient: Float64Array } | null;
   counter: Int32Array;
   chunk: number;
 }
@@ -135,7 +140,10 @@ export function runRows(job: RowsJob, P?: Panels, isCancelled?: () => boolean): 
     }
     const first = Atomics.add(job.counter, 0, job.chunk);
     if (first >= count) return true;
-    fillDenseRows(panels, job.points, job.images, job.rows.subarray(first, Math.min(count, first + job.chunk)), job.A, undefined, job.cols ?? undefined);
+    const rows = job.rows.subarray(first, Math.min(count, first + job.chunk));
+    const cols = job.cols ?? undefined;
+    if (job.thin) fillThinRows(panels, job.points, job.thin.normals, job.images, job.thin.panels, rows, job.A, job.thin.gradient, undefined, cols);
+    else fillDenseRows(panels, job.points, job.images, rows, job.A, undefined, cols);
   }
 }
 
