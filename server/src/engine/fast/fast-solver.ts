@@ -1,5 +1,6 @@
-// The accelerated solver: hierarchical matrix (ACA far blocks, exact near blocks), block-Jacobi
-// preconditioner over tree clusters, restarted GMRES with warm starts. Unknowns and right-hand
+// The accelerated solver: hierarchical matrix (ACA far blocks, exact near blocks), a two-level
+// preconditioner over tree clusters (block-jacobi.ts), restarted GMRES in lockstep over all
+// right-hand sides, with warm starts. Unknowns and right-hand
 // sides are in the caller's numbering; the tree order is internal.
 import type { EntrySource } from './aca';
 import { buildClusterTree } from './cluster-tree';
@@ -16,7 +17,7 @@ export interface FastSolverOptions {
   eps: number;
   /** Most unknowns per preconditioner block (default 128: with the coarse level, as few iterations as 256 at 16k panels and a quarter of the factoring work). */
   blockSize: number;
-  /** Add the coarse level (one constant per block) to the preconditioner (default true). */
+  /** Add the coarse level (one constant per coarse cluster) to the preconditioner (default true). */
   coarseLevel: boolean;
   /** GMRES relative residual tolerance (default 1e-9). */
   tol: number;

@@ -67,13 +67,6 @@ export interface HMatrix {
   packs: BlockPack[];
 }
 
-export interface HOptions {
-  /** Admissibility parameter η. */
-  eta: number;
-  /** ACA tolerance per block, relative. */
-  eps: number;
-}
-
 /** Splits the matrix into near and far blocks. Rows and columns share one tree (a square system). */
 export function partitionBlocks(tree: ClusterTree, eta: number): BlockTask[] {
   const tasks: BlockTask[] = [];
@@ -182,13 +175,6 @@ function sharedCopy<T extends Float32Array | Int32Array>(a: T): T {
   const out = new C(new SharedArrayBuffer(a.byteLength));
   (out as unknown as { set(x: T): void }).set(a);
   return out;
-}
-
-/** Assembles every block on this thread. */
-export function assembleHMatrix(src: EntrySource, tree: ClusterTree, options: HOptions): HMatrix {
-  const w = new PackWriter();
-  for (const task of partitionBlocks(tree, options.eta)) w.add(fillBlock(src, tree.order, task, options.eps));
-  return { size: tree.order.length, tree, packs: w.finish() };
 }
 
 /**
@@ -316,12 +302,6 @@ function packProductPair(p: BlockPack, b0: number, b1: number, xs: Float64Array,
       }
     }
   }
-}
-
-/** y = A·x in tree order on this thread (xp, yp indexed by tree position). yp is overwritten. */
-export function hmatvecTreeOrder(H: HMatrix, xp: Float64Array, yp: Float64Array): void {
-  yp.fill(0);
-  for (const p of H.packs) packProduct(p, 0, p.count, xp, yp, 1, H.size);
 }
 
 /** Calls `visit` for every stored block: rank −1 for dense. */
