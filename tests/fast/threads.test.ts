@@ -50,6 +50,25 @@ describe('worker threads give the same numbers as one thread', () => {
     expect(e / s).toBeLessThan(1e-12);
   });
 
+  it('solves on two threads (product and preconditioner shared) as on one', () => {
+    setFastWorkerScript({ code });
+    const two = buildPanelSolver(sys, { threads: 2, blockSize: 32 }, P)!;
+    const one = buildPanelSolver(sys, { threads: 1, blockSize: 32 }, P)!;
+    const rhs = [0, 1].map((e) => Float64Array.from(mesh.electrode, (o) => (o === e ? 1 : 0)));
+    const a = two.solveMany(rhs, [], { tol: 1e-10 })!, b = one.solveMany(rhs, [], { tol: 1e-10 })!;
+    for (let k = 0; k < 2; k++) {
+      expect(a[k].info.converged && b[k].info.converged).toBe(true);
+      // The same arithmetic except the order in which the threads' product slices are added.
+      expect(Math.abs(a[k].info.iterations - b[k].info.iterations)).toBeLessThanOrEqual(1);
+      let e = 0, n = 0;
+      for (let i = 0; i < P.count; i++) {
+        e += (a[k].x[i] - b[k].x[i]) ** 2;
+        n += b[k].x[i] ** 2;
+      }
+      expect(Math.sqrt(e / n)).toBeLessThan(1e-9);
+    }
+  });
+
   it('evaluates a grid on two threads exactly as on one', () => {
     setFastWorkerScript({ code });
     const sigma = Float64Array.from({ length: P.count }, (_, j) => 1 + mesh.centroid[3 * j + 1]);

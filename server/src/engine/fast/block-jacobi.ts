@@ -20,28 +20,42 @@
 // coarse level, M₁⁻¹ + Q, gave 23 and 31-36: it barely helped).
 import { forEachBlock, type HMatrix } from './hmatrix';
 
-export interface BlockJacobi {
+/**
+ * What applying the two levels to a range of blocks needs: plain arrays (the large ones in shared
+ * memory), so that worker threads can apply blocks too (fast/jobs.ts runPrecondition).
+ */
+export interface BlockSolveData {
   /** Per block: first tree position and size. */
   start: Int32Array;
   size: Int32Array;
-  /** LU factors (row-major, unit lower part implied) and pivots, per block. */
-  lu: Float64Array[];
-  pivot: Int32Array[];
-  /** The coarse level; null when there is one cluster only. */
-  coarse: Coarse | null;
+  /** All blocks' LU factors one after another (row-major, unit lower part implied); block k from luOff[k]. */
+  lu: Float64Array;
+  luOff: Int32Array;
+  /** Row swaps of all blocks, block k's at positions start[k] .. start[k] + size[k]. */
+  pivot: Int32Array;
+  /** The coarse level's A·Rᵀ (N×G) and the coarse cluster of each tree position; null without it. */
+  coarse: { G: number; AR: Float32Array; owner: Int32Array } | null;
+}
+
+export interface BlockJacobi extends BlockSolveData {
+  /** The coarse level's clusters and the LU of A_c; null when there is one cluster only. */
+  coarseSolve: Coarse | null;
 }
 
 /**
- * Coarse clusters (runs of tree positions), LU of A_c = R A Rᵀ (G×G) and A·Rᵀ (N×G, single
- * precision): R sums a vector over each cluster, Rᵀ spreads one value per cluster.
+ * Applies the local level (and the coarse level's A·Rᵀ and Rᵀ parts) to blocks [k0, k1) of K
+ * stacked vectors: zs ← M₁⁻¹ (rs − (A·Rᵀ)·ys) + Rᵀ·ys on those blocks' rows. ys holds the coarse
+ * solutions A_c⁻¹·R·r (K×G stacked), rs and zs K×N stacked, tree order.
  */
+export type BlockSolveRunner = (P: BlockSolveData, ys: Float64Array, rs: Float64Array, zs: Float64Array, K: number) => void;
+
+/** Coarse clusters (runs of tree positions) and the LU of A_c = R A Rᵀ (G×G). */
 interface Coarse {
   G: number;
   start: Int32Array;
   size: Int32Array;
   lu: Float64Array;
   pivot: Int32Array;
-  AR: Float32Array;
 }
 
 /**
@@ -66,7 +80,14 @@ export function buildBlockJacobi(H: HMatrix, blockSize: number, withCoarse = tru
   const size = Int32Array.from(idx.map((k) => sizes[k]));
   const owner = new Int32Array(H.size);
   for (let k = 0; k < start.length; k++) owner.fill(k, start[k], start[k] + size[k]);
-  const blocks = Array.from(size, (s) => new Float64Array(s * s));
+  const luOff = new Int32Array(start.length);
+  let total = 0;
+  for (let k = 0; k < start.length; k++) {
+    luOff[k] = total;
+    total += size[k] * size[k];
+  }
+  const lu = new Float64Array(new SharedArrayBuffer(8 * total));
+  const blocks = Array.from(size, (s, k) => lu.subarray(luOff[k], luOff[k] + s * s));
   const inside = (r0: number, m: number, c0: number, n: number): number => {
     const k = owner[r0];
     return owner[c0] === k && owner[r0 + m - 1] === k && owner[c0 + n - 1] === k ? k : -1;
@@ -88,13 +109,15 @@ export function buildBlockJacobi(H: HMatrix, blockSize: number, withCoarse = tru
       }
     }
   });
-  const pivot = blocks.map((B, k) => luFactor(B, size[k]));
-  let coarse: Coarse | null = null;
+  const pivot = new Int32Array(new SharedArrayBuffer(4 * H.size));
+  blocks.forEach((B, k) => pivot.set(luFactor(B, size[k]), start[k]));
+  let coarse: BlockSolveData['coarse'] = null;
+  let coarseSolve: Coarse | null = null;
   if (withCoarse) {
     const cs = clusters(H, Math.max(blockSize, Math.ceil(H.size / MAX_COARSE)));
-    if (cs.start.length > 1) coarse = buildCoarse(H, cs.start, cs.size);
+    if (cs.start.length > 1) ({ coarse, coarseSolve } = buildCoarse(H, cs.start, cs.size));
   }
-  return { start, size, lu: blocks, pivot, coarse };
+  return { start, size, lu, luOff, pivot, coarse, coarseSolve };
 }
 
 /** Most coarse clusters, about: A·Rᵀ holds N × G numbers (100 MB at 100k panels) and costs N·G per step. */
@@ -118,11 +141,11 @@ function clusters(H: HMatrix, most: number): { start: Int32Array; size: Int32Arr
 }
 
 /** A·Rᵀ from the stored blocks (a low-rank block U Vᵀ adds U·(R Vᵀ)ᵀ), then A_c = R·(A·Rᵀ). */
-function buildCoarse(H: HMatrix, start: Int32Array, size: Int32Array): Coarse {
+function buildCoarse(H: HMatrix, start: Int32Array, size: Int32Array): { coarse: NonNullable<BlockSolveData['coarse']>; coarseSolve: Coarse } {
   const G = start.length, N = H.size;
-  const owner = new Int32Array(N);
+  const owner = new Int32Array(new SharedArrayBuffer(4 * N));
   for (let k = 0; k < G; k++) owner.fill(k, start[k], start[k] + size[k]);
-  const AR = new Float32Array(N * G);
+  const AR = new Float32Array(new SharedArrayBuffer(4 * N * G));
   forEachBlock(H, (r0, m, c0, n, rank, values, off) => {
     if (rank < 0) {
       for (let a = 0; a < m; a++) {
@@ -149,7 +172,7 @@ function buildCoarse(H: HMatrix, start: Int32Array, size: Int32Array): Coarse {
     const I = owner[p] * G, o = p * G;
     for (let J = 0; J < G; J++) Ac[I + J] += AR[o + J];
   }
-  return { G, start, size, lu: Ac, pivot: luFactor(Ac, G), AR };
+  return { coarse: { G, AR, owner }, coarseSolve: { G, start, size, lu: Ac, pivot: luFactor(Ac, G) } };
 }
 
 /**
@@ -160,71 +183,61 @@ export function applyBlockJacobi(P: BlockJacobi, r: Float64Array, z: Float64Arra
   applyBlockJacobiMany(P, [r], [z]);
 }
 
-/** zs[v] = M⁻¹·rs[v] for several vectors, with one pass over A·Rᵀ for each pair of them. */
-export function applyBlockJacobiMany(P: BlockJacobi, rs: Float64Array[], zs: Float64Array[]): void {
-  const c = P.coarse;
-  const K = rs.length;
-  let rr = rs;
-  let ys: Float64Array[] = [];
+/** The blocks on the calling thread. */
+export const blockSolveHere: BlockSolveRunner = (P, ys, rs, zs, K) => applyBlocks(P, ys, rs, zs, K, 0, P.start.length);
+
+/** zs[v] = M⁻¹·rs[v] for several vectors: coarse solves here, the blocks by `runner`. */
+export function applyBlockJacobiMany(P: BlockJacobi, rs: Float64Array[], zs: Float64Array[], runner: BlockSolveRunner = blockSolveHere): void {
+  const K = rs.length, N = P.pivot.length;
+  const c = P.coarseSolve;
+  const G = c ? c.G : 0;
+  const ys = new Float64Array(new SharedArrayBuffer(8 * Math.max(1, K * G)));
   if (c) {
-    const { G, AR } = c;
-    ys = rs.map((r) => {
-      const y = new Float64Array(G);
+    rs.forEach((r, v) => {
+      const o = v * G;
       for (let k = 0; k < G; k++) {
         let s = 0;
         for (let i = c.start[k], e = i + c.size[k]; i < e; i++) s += r[i];
-        y[k] = s;
+        ys[o + k] = s;
       }
-      luSolve(c.lu, c.pivot, G, y, 0);
-      return y;
+      luSolve(c.lu, 0, c.pivot, 0, G, ys, o);
     });
-    rr = rs.map((r) => Float64Array.from(r));
-    const N = rr[0].length;
-    for (let v = 0; v < K; v += 2) {
-      if (v + 1 < K) {
-        const y1 = ys[v], y2 = ys[v + 1], r1 = rr[v], r2 = rr[v + 1];
-        for (let p = 0; p < N; p++) {
-          let s1 = 0, s2 = 0;
-          const o = p * G;
-          for (let J = 0; J < G; J++) {
-            const a = AR[o + J];
-            s1 += a * y1[J];
-            s2 += a * y2[J];
-          }
-          r1[p] -= s1;
-          r2[p] -= s2;
-        }
-      } else {
-        const y1 = ys[v], r1 = rr[v];
-        for (let p = 0; p < N; p++) {
-          let s1 = 0;
-          const o = p * G;
-          for (let J = 0; J < G; J++) s1 += AR[o + J] * y1[J];
-          r1[p] -= s1;
-        }
-      }
-    }
   }
-  for (let v = 0; v < K; v++) {
-    const z = zs[v], r = rr[v];
-    for (let k = 0; k < P.start.length; k++) {
-      const s0 = P.start[k], n = P.size[k];
-      for (let i = 0; i < n; i++) z[s0 + i] = r[s0 + i];
-      luSolve(P.lu[k], P.pivot[k], n, z, s0);
-    }
-    if (!c) continue;
-    const y = ys[v];
-    for (let k = 0; k < c.G; k++) {
-      const val = y[k];
-      for (let i = c.start[k], e = i + c.size[k]; i < e; i++) z[i] += val;
+  const rsS = new Float64Array(new SharedArrayBuffer(8 * K * N)), zsS = new Float64Array(new SharedArrayBuffer(8 * K * N));
+  rs.forEach((r, v) => rsS.set(r, v * N));
+  runner(P, ys, rsS, zsS, K);
+  zs.forEach((z, v) => z.set(zsS.subarray(v * N, (v + 1) * N)));
+}
+
+/** See BlockSolveRunner: blocks [k0, k1) of K stacked vectors. */
+export function applyBlocks(P: BlockSolveData, ys: Float64Array, rs: Float64Array, zs: Float64Array, K: number, k0: number, k1: number): void {
+  const N = P.pivot.length, c = P.coarse;
+  for (let k = k0; k < k1; k++) {
+    const s0 = P.start[k], n = P.size[k];
+    for (let v = 0; v < K; v++) {
+      const o = v * N;
+      if (c) {
+        const { G, AR } = c, yo = v * G;
+        for (let p = s0; p < s0 + n; p++) {
+          let s = 0;
+          const a = p * G;
+          for (let J = 0; J < G; J++) s += AR[a + J] * ys[yo + J];
+          zs[o + p] = rs[o + p] - s;
+        }
+      } else for (let p = s0; p < s0 + n; p++) zs[o + p] = rs[o + p];
+      luSolve(P.lu, P.luOff[k], P.pivot, s0, n, zs, o + s0);
+      if (c) for (let p = s0; p < s0 + n; p++) zs[o + p] += ys[v * c.G + c.owner[p]];
     }
   }
 }
 
-/** Solves in place with LU factors from luFactor: x[at .. at+n) ← A⁻¹ x[at .. at+n). */
-function luSolve(A: Float64Array, piv: Int32Array, n: number, x: Float64Array, at: number): void {
+/**
+ * Solves in place with LU factors from luFactor: x[at .. at+n) ← A⁻¹ x[at .. at+n), the factors
+ * at A[a ..] (row-major n×n) and the row swaps at piv[p .. p+n).
+ */
+function luSolve(A: Float64Array, a: number, piv: Int32Array, p0: number, n: number, x: Float64Array, at: number): void {
   for (let i = 0; i < n; i++) {
-    const p = piv[i];
+    const p = piv[p0 + i];
     if (p !== i) {
       const tmp = x[at + i];
       x[at + i] = x[at + p];
@@ -233,13 +246,13 @@ function luSolve(A: Float64Array, piv: Int32Array, n: number, x: Float64Array, a
   }
   for (let i = 0; i < n; i++) {
     let s = x[at + i];
-    const o = i * n;
+    const o = a + i * n;
     for (let j = 0; j < i; j++) s -= A[o + j] * x[at + j];
     x[at + i] = s;
   }
   for (let i = n - 1; i >= 0; i--) {
     let s = x[at + i];
-    const o = i * n;
+    const o = a + i * n;
     for (let j = i + 1; j < n; j++) s -= A[o + j] * x[at + j];
     x[at + i] = s / A[o + i];
   }

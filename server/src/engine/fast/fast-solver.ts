@@ -4,7 +4,7 @@
 // sides are in the caller's numbering; the tree order is internal.
 import type { EntrySource } from './aca';
 import { buildClusterTree } from './cluster-tree';
-import { applyBlockJacobi, applyBlockJacobiMany, buildBlockJacobi, type BlockJacobi } from './block-jacobi';
+import { applyBlockJacobi, applyBlockJacobiMany, blockSolveHere, buildBlockJacobi, type BlockJacobi, type BlockSolveRunner } from './block-jacobi';
 import { gmresMany } from '../linear/gmres';
 import { fillBlock, hmatrixStorage, packProduct, partitionBlocks, PackWriter, type BlockPack, type BlockTask, type HMatrix } from './hmatrix';
 
@@ -87,6 +87,7 @@ export function buildFastSolver(
   filler?: BlockFiller,
   isCancelled?: () => boolean,
   product: BlockProduct = productHere,
+  blockSolve: BlockSolveRunner = blockSolveHere,
 ): FastSolver | null {
   const o = { ...DEFAULT_FAST_OPTIONS, ...options };
   const timings: Record<string, number> = {};
@@ -151,7 +152,7 @@ export function buildFastSolver(
       restart: o.restart,
       maxIterations: 1000,
       precondition,
-      preconditionMany: (rs: Float64Array[], zs: Float64Array[]) => applyBlockJacobiMany(P, rs, zs),
+      preconditionMany: (rs: Float64Array[], zs: Float64Array[]) => applyBlockJacobiMany(P, rs, zs, blockSolve),
       isCancelled: control.isCancelled,
     });
     if (!rs) return null;

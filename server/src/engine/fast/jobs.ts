@@ -5,6 +5,7 @@ import { preparePanels, type Panels } from '../kernels/triangle';
 import { fillBlock, packProduct, PackWriter, type BlockPack, type BlockTask } from './hmatrix';
 import { panelEntrySource, type ImageMap } from './panel-entries';
 import { evaluateTree, type PanelTree } from './treecode';
+import { applyBlocks, type BlockSolveData } from './block-jacobi';
 import { fillDenseRows, fillThinRows } from '../bem3d/system';
 import { productMany } from '../linear/solver';
 import type { Image } from '../bem3d/images';
@@ -170,6 +171,27 @@ export function runDenseProduct(job: DenseProductJob): void {
     const r1 = Math.min(n, r0 + chunk);
     const y = Array.from({ length: K }, (_, v) => ys.subarray(v * n + r0, v * n + r1));
     productMany(r1 - r0, n, A.subarray(r0 * n, r1 * n), x, y);
+  }
+}
+
+/** The preconditioner's blocks for K stacked vectors (block-jacobi.ts applyBlocks), shared between threads. */
+export interface PreconditionJob {
+  kind: 'precondition';
+  P: BlockSolveData;
+  ys: Float64Array;
+  rs: Float64Array;
+  zs: Float64Array;
+  K: number;
+  counter: Int32Array;
+  chunk: number;
+}
+
+export function runPrecondition(job: PreconditionJob): void {
+  const count = job.P.start.length;
+  for (;;) {
+    const k0 = Atomics.add(job.counter, 0, job.chunk);
+    if (k0 >= count) return;
+    applyBlocks(job.P, job.ys, job.rs, job.zs, job.K, k0, Math.min(count, k0 + job.chunk));
   }
 }
 

@@ -3,7 +3,8 @@
 import { preparePanels, type Panels } from '../kernels/triangle';
 import { buildFastSolver, productHere, type BlockProduct, type FastSolver, type FastSolverOptions } from './fast-solver';
 import { type BlockPack, type BlockTask, type HMatrix } from './hmatrix';
-import { productItems, runAssemble, runProduct, type AssembleJob, type ProductJob } from './jobs';
+import { productItems, runAssemble, runPrecondition, runProduct, type AssembleJob, type PreconditionJob, type ProductJob } from './jobs';
+import { blockSolveHere, type BlockSolveRunner } from './block-jacobi';
 import { panelEntrySource, panelExtent, type ImageMap } from './panel-entries';
 import { fastThreads, runParallel, shared } from './pool';
 
@@ -33,7 +34,26 @@ export function buildPanelSolver(sys: PanelSystem, options: Partial<PanelSolverO
   const src = panelEntrySource(P, sys.points, sys.scale, sys.images);
   const threads = fastThreads(options.threads);
   const filler = threads > 1 ? (tasks: BlockTask[], order: Int32Array, eps: number) => fillParallel(sys, P, tasks, order, eps, threads, isCancelled) : undefined;
-  return buildFastSolver(src, sys.points, panelExtent(P, sys.points), options, filler, isCancelled, threads > 1 ? parallelProduct(threads) : productHere);
+  return buildFastSolver(
+    src,
+    sys.points,
+    panelExtent(P, sys.points),
+    options,
+    filler,
+    isCancelled,
+    threads > 1 ? parallelProduct(threads) : productHere,
+    threads > 1 ? parallelBlockSolve(threads) : blockSolveHere,
+  );
+}
+
+/** The preconditioner's blocks shared between threads (jobs.ts runPrecondition); on failure, done here. */
+function parallelBlockSolve(threads: number): BlockSolveRunner {
+  return (P, ys, rs, zs, K) => {
+    const slim = { start: P.start, size: P.size, lu: P.lu, luOff: P.luOff, pivot: P.pivot, coarse: P.coarse };
+    const job: PreconditionJob = { kind: 'precondition', P: slim, ys, rs, zs, K, counter: new Int32Array(new SharedArrayBuffer(4)), chunk: 4 };
+    const replies = runParallel(threads, job as unknown as Record<string, unknown>, () => runPrecondition(job));
+    if (!replies) blockSolveHere(P, ys, rs, zs, K);
+  };
 }
 
 /** The H-matrix product shared between threads (jobs.ts runProduct); on failure, done here. */
