@@ -62,7 +62,24 @@ interface Coarse {
  * Chooses the largest clusters holding at most `blockSize` unknowns, gathers their diagonal blocks
  * from the H-matrix (dense blocks copied, low-rank blocks expanded) and factors them.
  */
-export function buildBlockJacobi(H: HMatrix, blockSize: number, withCoarse = true): BlockJacobi {
+/**
+ * Factors blocks in place: block k of `lu` (size[k]², from luOff[k]) by luFactor, its row swaps to
+ * pivot[start[k] ..]. Here, or on several threads (fast/jobs.ts runFactor). False when it could not
+ * finish (a thread failed): the blocks must then be gathered and factored again.
+ */
+export type BlockFactorRunner = (lu: Float64Array, luOff: Int32Array, size: Int32Array, start: Int32Array, pivot: Int32Array) => boolean;
+
+export const factorHere: BlockFactorRunner = (lu, luOff, size, start, pivot) => {
+  factorBlocks(lu, luOff, size, start, pivot, 0, size.length);
+  return true;
+};
+
+/** Blocks [k0, k1) of a BlockFactorRunner's work. */
+export function factorBlocks(lu: Float64Array, luOff: Int32Array, size: Int32Array, start: Int32Array, pivot: Int32Array, k0: number, k1: number): void {
+  for (let k = k0; k < k1; k++) pivot.set(luFactor(lu.subarray(luOff[k], luOff[k] + size[k] * size[k]), size[k]), start[k]);
+}
+
+export function buildBlockJacobi(H: HMatrix, blockSize: number, withCoarse = true, factor: BlockFactorRunner = factorHere): BlockJacobi {
   const t = H.tree;
   const starts: number[] = [];
   const sizes: number[] = [];
@@ -92,7 +109,7 @@ export function buildBlockJacobi(H: HMatrix, blockSize: number, withCoarse = tru
     const k = owner[r0];
     return owner[c0] === k && owner[r0 + m - 1] === k && owner[c0 + n - 1] === k ? k : -1;
   };
-  forEachBlock(H, (r0, m, c0, n, rank, values, off) => {
+  const gather = () => forEachBlock(H, (r0, m, c0, n, rank, values, off) => {
     const k = inside(r0, m, c0, n);
     if (k < 0) return;
     const s = size[k], B = blocks[k], ro = r0 - start[k], co = c0 - start[k];
@@ -109,8 +126,13 @@ export function buildBlockJacobi(H: HMatrix, blockSize: number, withCoarse = tru
       }
     }
   });
+  gather();
   const pivot = new Int32Array(new SharedArrayBuffer(4 * H.size));
-  blocks.forEach((B, k) => pivot.set(luFactor(B, size[k]), start[k]));
+  if (!factor(lu, luOff, size, start, pivot)) {
+    lu.fill(0);
+    gather();
+    factorHere(lu, luOff, size, start, pivot);
+  }
   let coarse: BlockSolveData['coarse'] = null;
   let coarseSolve: Coarse | null = null;
   if (withCoarse) {
@@ -158,12 +180,12 @@ function buildCoarse(H: HMatrix, start: Int32Array, size: Int32Array): { coarse:
     const J0 = owner[c0], nj = owner[c0 + n - 1] - J0 + 1, vOff = off + rank * m;
     const vs = new Float64Array(rank * nj);
     for (let l = 0; l < rank; l++) for (let c = 0; c < n; c++) vs[l * nj + owner[c0 + c] - J0] += values[vOff + l * n + c];
-    for (let a = 0; a < m; a++) {
-      const o = (r0 + a) * G + J0;
-      for (let J = 0; J < nj; J++) {
-        let s = 0;
-        for (let l = 0; l < rank; l++) s += values[off + l * m + a] * vs[l * nj + J];
-        AR[o + J] += s;
+    // AR[r0 + a][J0 + J] += Σ_l U_l[a]·vs_l[J], one factor column at a time (contiguous rows).
+    for (let l = 0; l < rank; l++) {
+      const ou = off + l * m, ov = l * nj;
+      for (let a = 0; a < m; a++) {
+        const u = values[ou + a], o = (r0 + a) * G + J0;
+        for (let J = 0; J < nj; J++) AR[o + J] += u * vs[ov + J];
       }
     }
   });

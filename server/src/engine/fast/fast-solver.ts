@@ -4,7 +4,7 @@
 // sides are in the caller's numbering; the tree order is internal.
 import type { EntrySource } from './aca';
 import { buildClusterTree } from './cluster-tree';
-import { applyBlockJacobi, applyBlockJacobiMany, blockSolveHere, buildBlockJacobi, type BlockJacobi, type BlockSolveRunner } from './block-jacobi';
+import { applyBlockJacobi, applyBlockJacobiMany, blockSolveHere, buildBlockJacobi, factorHere, type BlockFactorRunner, type BlockJacobi, type BlockSolveRunner } from './block-jacobi';
 import { gmresMany } from '../linear/gmres';
 import { fillBlock, hmatrixStorage, packProduct, partitionBlocks, PackWriter, type BlockPack, type BlockTask, type HMatrix } from './hmatrix';
 
@@ -74,6 +74,15 @@ export interface FastSolver {
   H: HMatrix;
 }
 
+/** How the work is spread over threads; each part defaults to the calling thread alone. */
+export interface FastWork {
+  /** Fills the blocks (default: here, polling isCancelled). */
+  fill?: BlockFiller;
+  product?: BlockProduct;
+  blockSolve?: BlockSolveRunner;
+  factor?: BlockFactorRunner;
+}
+
 /**
  * Builds the solver for the matrix whose entries `src` gives. `points` are the collocation points
  * (3 per unknown), `extent` what each unknown's box must cover (the panel vertices). Null when
@@ -84,11 +93,12 @@ export function buildFastSolver(
   points: Float64Array,
   extent: { coords: Float64Array; stride: number } | undefined,
   options: Partial<FastSolverOptions> = {},
-  filler?: BlockFiller,
+  work: FastWork = {},
   isCancelled?: () => boolean,
-  product: BlockProduct = productHere,
-  blockSolve: BlockSolveRunner = blockSolveHere,
 ): FastSolver | null {
+  const filler = work.fill;
+  const product = work.product ?? productHere;
+  const blockSolve = work.blockSolve ?? blockSolveHere;
   const o = { ...DEFAULT_FAST_OPTIONS, ...options };
   const timings: Record<string, number> = {};
   let t0 = performance.now();
@@ -111,7 +121,7 @@ export function buildFastSolver(
   const H: HMatrix = { size: n, tree, packs };
   timings.assemble = performance.now() - t0;
   t0 = performance.now();
-  const P: BlockJacobi = buildBlockJacobi(H, o.blockSize, o.coarseLevel);
+  const P: BlockJacobi = buildBlockJacobi(H, o.blockSize, o.coarseLevel, work.factor ?? factorHere);
   timings.precondition = performance.now() - t0;
   const order = tree.order;
   const store = hmatrixStorage(H);

@@ -5,7 +5,7 @@ import { preparePanels, type Panels } from '../kernels/triangle';
 import { fillBlock, packProduct, PackWriter, type BlockPack, type BlockTask } from './hmatrix';
 import { panelEntrySource, type ImageMap } from './panel-entries';
 import { evaluateTree, type PanelTree } from './treecode';
-import { applyBlocks, type BlockSolveData } from './block-jacobi';
+import { applyBlocks, factorBlocks, type BlockSolveData } from './block-jacobi';
 import { fillDenseRows, fillThinRows } from '../bem3d/system';
 import { productMany } from '../linear/solver';
 import type { Image } from '../bem3d/images';
@@ -192,6 +192,27 @@ export function runPrecondition(job: PreconditionJob): void {
     const k0 = Atomics.add(job.counter, 0, job.chunk);
     if (k0 >= count) return;
     applyBlocks(job.P, job.ys, job.rs, job.zs, job.K, k0, Math.min(count, k0 + job.chunk));
+  }
+}
+
+/** LU factorization of the preconditioner's blocks in place (block-jacobi.ts factorBlocks), shared between threads. */
+export interface FactorJob {
+  kind: 'factor';
+  lu: Float64Array;
+  luOff: Int32Array;
+  size: Int32Array;
+  start: Int32Array;
+  pivot: Int32Array;
+  counter: Int32Array;
+  chunk: number;
+}
+
+export function runFactor(job: FactorJob): void {
+  const count = job.size.length;
+  for (;;) {
+    const k0 = Atomics.add(job.counter, 0, job.chunk);
+    if (k0 >= count) return;
+    factorBlocks(job.lu, job.luOff, job.size, job.start, job.pivot, k0, Math.min(count, k0 + job.chunk));
   }
 }
 

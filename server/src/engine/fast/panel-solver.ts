@@ -1,10 +1,10 @@
 // The fast solver for a panel mesh, with its parallel assembly: the entry points the 3D solver
 // and the benchmark call. See fast-solver.ts for the method and hmatrix.ts for why.
 import { preparePanels, type Panels } from '../kernels/triangle';
-import { buildFastSolver, productHere, type BlockProduct, type FastSolver, type FastSolverOptions } from './fast-solver';
+import { buildFastSolver, productHere, type BlockProduct, type FastSolver, type FastSolverOptions, type FastWork } from './fast-solver';
 import { type BlockPack, type BlockTask, type HMatrix } from './hmatrix';
-import { productItems, runAssemble, runPrecondition, runProduct, type AssembleJob, type PreconditionJob, type ProductJob } from './jobs';
-import { blockSolveHere, type BlockSolveRunner } from './block-jacobi';
+import { productItems, runAssemble, runFactor, runPrecondition, runProduct, type AssembleJob, type FactorJob, type PreconditionJob, type ProductJob } from './jobs';
+import { blockSolveHere, type BlockFactorRunner, type BlockSolveRunner } from './block-jacobi';
 import { panelEntrySource, panelExtent, type ImageMap } from './panel-entries';
 import { fastThreads, runParallel, shared } from './pool';
 
@@ -33,17 +33,25 @@ export function buildPanelSolver(sys: PanelSystem, options: Partial<PanelSolverO
   const P = panels ?? preparePanels(sys);
   const src = panelEntrySource(P, sys.points, sys.scale, sys.images);
   const threads = fastThreads(options.threads);
-  const filler = threads > 1 ? (tasks: BlockTask[], order: Int32Array, eps: number) => fillParallel(sys, P, tasks, order, eps, threads, isCancelled) : undefined;
-  return buildFastSolver(
-    src,
-    sys.points,
-    panelExtent(P, sys.points),
-    options,
-    filler,
-    isCancelled,
-    threads > 1 ? parallelProduct(threads) : productHere,
-    threads > 1 ? parallelBlockSolve(threads) : blockSolveHere,
-  );
+  const work: FastWork =
+    threads > 1
+      ? {
+          fill: (tasks: BlockTask[], order: Int32Array, eps: number) => fillParallel(sys, P, tasks, order, eps, threads, isCancelled),
+          product: parallelProduct(threads),
+          blockSolve: parallelBlockSolve(threads),
+          factor: parallelFactor(threads),
+        }
+      : {};
+  return buildFastSolver(src, sys.points, panelExtent(P, sys.points), options, work, isCancelled);
+}
+
+/** The preconditioner's block factorizations shared between threads (jobs.ts runFactor). */
+function parallelFactor(threads: number): BlockFactorRunner {
+  return (lu, luOff, size, start, pivot) => {
+    const job: FactorJob = { kind: 'factor', lu, luOff: shared(luOff), size: shared(size), start: shared(start), pivot, counter: new Int32Array(new SharedArrayBuffer(4)), chunk: 2 };
+    // A failed worker may leave a block half factored: say so, and the caller gathers and factors afresh.
+    return runParallel(threads, job as unknown as Record<string, unknown>, () => runFactor(job)) !== null;
+  };
 }
 
 /** The preconditioner's blocks shared between threads (jobs.ts runPrecondition); on failure, done here. */
