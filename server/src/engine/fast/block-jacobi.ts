@@ -59,10 +59,6 @@ interface Coarse {
 }
 
 /**
- * Chooses the largest clusters holding at most `blockSize` unknowns, gathers their diagonal blocks
- * from the H-matrix (dense blocks copied, low-rank blocks expanded) and factors them.
- */
-/**
  * Factors blocks in place: block k of `lu` (size[k]², from luOff[k]) by luFactor, its row swaps to
  * pivot[start[k] ..]. Here, or on several threads (fast/jobs.ts runFactor). False when it could not
  * finish (a thread failed): the blocks must then be gathered and factored again.
@@ -79,22 +75,13 @@ export function factorBlocks(lu: Float64Array, luOff: Int32Array, size: Int32Arr
   for (let k = k0; k < k1; k++) pivot.set(luFactor(lu.subarray(luOff[k], luOff[k] + size[k] * size[k]), size[k]), start[k]);
 }
 
+/**
+ * Chooses the largest clusters holding at most `blockSize` unknowns, gathers their diagonal blocks
+ * from the H-matrix (dense blocks copied, low-rank blocks expanded) and factors them.
+ */
 export function buildBlockJacobi(H: HMatrix, blockSize: number, withCoarse = true, factor: BlockFactorRunner = factorHere): BlockJacobi {
-  const t = H.tree;
-  const starts: number[] = [];
-  const sizes: number[] = [];
-  const stack = [0];
-  while (stack.length > 0) {
-    const v = stack.pop()!;
-    if (t.count[v] <= blockSize || t.left[v] < 0) {
-      starts.push(t.start[v]);
-      sizes.push(t.count[v]);
-    } else stack.push(t.right[v], t.left[v]);
-  }
   // Blocks in tree order; owner[p] = block holding tree position p.
-  const idx = starts.map((_, k) => k).sort((a, b) => starts[a] - starts[b]);
-  const start = Int32Array.from(idx.map((k) => starts[k]));
-  const size = Int32Array.from(idx.map((k) => sizes[k]));
+  const { start, size } = clusters(H, blockSize);
   const owner = new Int32Array(H.size);
   for (let k = 0; k < start.length; k++) owner.fill(k, start[k], start[k] + size[k]);
   const luOff = new Int32Array(start.length);
