@@ -2,8 +2,10 @@
 // so the build works while the tree grows. Output goes to dist/ (not tracked).
 import { build } from 'esbuild';
 import { existsSync, mkdirSync, copyFileSync, chmodSync, readdirSync } from 'node:fs';
+import { watPlugin } from './wat.mjs';
 
-const node = { platform: 'node', target: 'node20', format: 'cjs', bundle: true, sourcemap: true, logLevel: 'warning' };
+// .wat imports (the fast product kernel) are assembled to bytes as they are bundled.
+const node = { platform: 'node', target: 'node20', format: 'cjs', bundle: true, sourcemap: true, logLevel: 'warning', plugins: [watPlugin] };
 const entries = [
   { ...node, entryPoints: ['server/src/cli/main.ts'], outfile: 'dist/cli.js', banner: { js: '#!/usr/bin/env node' } },
   { ...node, entryPoints: ['server/src/lsp/main.ts'], outfile: 'dist/server.js' },

@@ -37,7 +37,7 @@ function ensureBuilt(): void {
     process.execPath,
     [
       '-e',
-      "require('esbuild').buildSync({ entryPoints: ['server/src/cli/main.ts'], outfile: 'dist/cli.js', bundle: true, platform: 'node', target: 'node20', format: 'cjs', sourcemap: true, banner: { js: '#!/usr/bin/env node' }, logLevel: 'error' })",
+      "import('./scripts/wat.mjs').then(({ watPlugin }) => require('esbuild').build({ entryPoints: ['server/src/cli/main.ts'], outfile: 'dist/cli.js', bundle: true, platform: 'node', target: 'node20', format: 'cjs', sourcemap: true, banner: { js: '#!/usr/bin/env node' }, logLevel: 'error', plugins: [watPlugin] })).catch((e) => { console.error(e); process.exit(1); })",
     ],
     { cwd: root, encoding: 'utf8' },
   );

@@ -189,3 +189,23 @@ describe('the product of several stacked vectors', () => {
     }
   });
 });
+
+describe('the SIMD product kernel (product-kernel.wat)', () => {
+  it('keeps the blocks in its arena and multiplies like the plain JavaScript product to 1e-13, for 1 to 5 vectors', () => {
+    // The same blocks twice: in the WebAssembly arena, and in ordinary shared buffers (the reference).
+    const plain = buildFastSolver(src, mesh.centroid, panelExtent(P), { leafSize: 24, blockSize: 64, simd: false })!;
+    expect(fast.H.arena).not.toBeNull();
+    expect(fast.H.packs.every((p) => p.wasm)).toBe(true);
+    expect(plain.H.arena).toBeNull();
+    expect(plain.stats.blocks).toBe(fast.stats.blocks);
+    const N = fast.H.size;
+    // Leaves of 24 and blocks of every size: row lengths hit the kernel's groups of eight, four and one.
+    for (let Kv = 1; Kv <= 5; Kv++) {
+      const xs = Float64Array.from({ length: Kv * N }, (_, i) => Math.cos(0.3 * i) - 0.1);
+      const a = new Float64Array(Kv * N), b = new Float64Array(Kv * N);
+      productHere(fast.H, xs, a, Kv);
+      productHere(plain.H, xs, b, Kv);
+      expect(relNorm(a, b)).toBeLessThan(1e-13);
+    }
+  });
+});

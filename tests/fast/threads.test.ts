@@ -1,5 +1,6 @@
 import { afterAll, describe, expect, it } from 'vitest';
-import { buildSync } from 'esbuild';
+import { build } from 'esbuild';
+import { watPlugin } from '../../scripts/wat.mjs';
 import { preparePanels } from '../../server/src/engine/kernels/triangle';
 import { buildPanelSolver } from '../../server/src/engine/fast/panel-solver';
 import { FieldEvaluator } from '../../server/src/engine/fast/field-evaluator';
@@ -13,7 +14,7 @@ import { denseProductHere } from '../../server/src/engine/linear/solver';
 const ZERO = { start: { line: 0, character: 0 }, end: { line: 0, character: 0 } };
 
 // Worker threads cannot load TypeScript: bundle the worker entry the way the build does.
-const code = buildSync({ entryPoints: ['server/src/engine/fast/worker.ts'], bundle: true, platform: 'node', format: 'cjs', write: false }).outputFiles[0].text;
+const code = (await build({ entryPoints: ['server/src/engine/fast/worker.ts'], bundle: true, platform: 'node', format: 'cjs', write: false, plugins: [watPlugin] })).outputFiles[0].text;
 
 const EPS0 = 8.8541878188e-12; // CODATA 2022 (references.md)
 // A grounded plane z = −1.5: the identity and the mirror image with opposite sign.

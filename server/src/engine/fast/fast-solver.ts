@@ -7,6 +7,7 @@ import { buildClusterTree } from './cluster-tree';
 import { applyBlockJacobi, applyBlockJacobiMany, blockSolveHere, buildBlockJacobi, factorHere, type BlockFactorRunner, type BlockJacobi, type BlockSolveRunner } from './block-jacobi';
 import { gmresMany } from '../linear/gmres';
 import { fillBlock, hmatrixStorage, packProduct, partitionBlocks, PackWriter, type BlockPack, type BlockTask, type HMatrix } from './hmatrix';
+import { arenaAlloc, arenaFloat64, createArena, kernelFor, type Arena } from './arena';
 
 export interface FastSolverOptions {
   /** Most unknowns in a tree leaf (default 32). */
@@ -23,20 +24,53 @@ export interface FastSolverOptions {
   tol: number;
   /** GMRES restart length (default 60). */
   restart: number;
+  /** Keep the blocks in a WebAssembly arena and multiply with the SIMD kernel (default true; false: plain JavaScript, the reference). */
+  simd: boolean;
 }
 
-export const DEFAULT_FAST_OPTIONS: FastSolverOptions = { leafSize: 32, eta: 2, eps: 3e-7, blockSize: 128, coarseLevel: true, tol: 1e-9, restart: 60 };
+export const DEFAULT_FAST_OPTIONS: FastSolverOptions = { leafSize: 32, eta: 2, eps: 3e-7, blockSize: 128, coarseLevel: true, tol: 1e-9, restart: 60, simd: true };
 
-/** Fills a list of blocks, possibly on several threads; returns them packed, in any order. */
-export type BlockFiller = (tasks: BlockTask[], order: Int32Array, eps: number) => BlockPack[];
+/** Fills a list of blocks, possibly on several threads; returns them packed (in the arena when given), in any order. */
+export type BlockFiller = (tasks: BlockTask[], order: Int32Array, eps: number, arena: Arena | null) => BlockPack[];
 
 /** ys ← A·xs for K vectors stacked in tree order (K·n numbers each), possibly on several threads. */
 export type BlockProduct = (H: HMatrix, xs: Float64Array, ys: Float64Array, K: number) => void;
 
-/** The product on the calling thread. */
+const vectorAreas = new WeakMap<HMatrix, { xs: Float64Array; ys: Float64Array }>();
+
+/**
+ * Room in the H-matrix's arena for a product's K stacked vectors and `slices` sums of them (one
+ * per thread), so that the SIMD kernel reaches them; kept per H-matrix, grown when K grows. Null
+ * without an arena (or past its 4 GiB).
+ */
+export function productVectors(H: HMatrix, K: number, slices: number): { xs: Float64Array; ys: Float64Array } | null {
+  if (!H.arena) return null;
+  const n = H.size;
+  let a = vectorAreas.get(H);
+  if (!a || a.xs.length < K * n || a.ys.length < slices * K * n) {
+    const x = arenaAlloc(H.arena, 8 * K * n);
+    const y = x < 0 ? -1 : arenaAlloc(H.arena, 8 * slices * K * n);
+    if (y < 0) return null;
+    a = { xs: arenaFloat64(H.arena, x, K * n), ys: arenaFloat64(H.arena, y, slices * K * n) };
+    vectorAreas.set(H, a);
+  }
+  return { xs: a.xs.subarray(0, K * n), ys: a.ys.subarray(0, slices * K * n) };
+}
+
+/** The product on the calling thread: in the arena with the SIMD kernel when there is one. */
 export const productHere: BlockProduct = (H, xs, ys, K) => {
-  ys.fill(0);
-  for (const p of H.packs) packProduct(p, 0, p.count, xs, ys, K, H.size);
+  const n = H.size;
+  const area = productVectors(H, K, 1);
+  const kernel = area && H.arena ? kernelFor(H.arena.memory) : null;
+  if (!area || !kernel) {
+    ys.fill(0);
+    for (const p of H.packs) packProduct(p, 0, p.count, xs, ys, K, n);
+    return;
+  }
+  area.xs.set(xs.subarray(0, K * n));
+  area.ys.fill(0);
+  for (const p of H.packs) packProduct(p, 0, p.count, area.xs, area.ys, K, n, kernel);
+  ys.set(area.ys);
 };
 
 export interface FastSolveInfo {
@@ -107,10 +141,11 @@ export function buildFastSolver(
   const tasks = partitionBlocks(tree, o.eta);
   timings.tree = performance.now() - t0;
   t0 = performance.now();
+  const arena = o.simd ? createArena() : null;
   let packs: BlockPack[];
-  if (filler) packs = filler(tasks, tree.order, o.eps);
+  if (filler) packs = filler(tasks, tree.order, o.eps, arena);
   else {
-    const w = new PackWriter();
+    const w = new PackWriter(arena);
     for (let k = 0; k < tasks.length; k++) {
       if ((k & 63) === 0 && isCancelled?.()) return null;
       w.add(fillBlock(src, tree.order, tasks[k], o.eps));
@@ -118,7 +153,7 @@ export function buildFastSolver(
     packs = w.finish();
   }
   if (isCancelled?.()) return null;
-  const H: HMatrix = { size: n, tree, packs };
+  const H: HMatrix = { size: n, tree, packs, arena };
   timings.assemble = performance.now() - t0;
   t0 = performance.now();
   const P: BlockJacobi = buildBlockJacobi(H, o.blockSize, o.coarseLevel, work.factor ?? factorHere);

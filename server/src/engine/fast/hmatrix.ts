@@ -16,6 +16,7 @@
 // (standard admissibility, Hackbusch, "Hierarchical Matrices", 2015, sec. 4.2); otherwise the pair
 // is split, and a pair of leaves is stored dense. Storage and work are O(N log N) for fixed ε.
 import { acaBlock, type EntrySource } from './aca';
+import { arenaAlloc, arenaFloat32, arenaInt32, type Arena, type ProductKernel } from './arena';
 import { boxDiameter, boxDistance, type ClusterTree } from './cluster-tree';
 
 export interface DenseBlock {
@@ -59,12 +60,16 @@ export interface BlockPack {
   heads: Int32Array;
   count: number;
   values: Float32Array;
+  /** True when heads and values are views into the H-matrix's arena (their byte offsets are addresses there). */
+  wasm: boolean;
 }
 
 export interface HMatrix {
   size: number;
   tree: ClusterTree;
   packs: BlockPack[];
+  /** The shared memory the packs live in, for the SIMD kernel (arena.ts); null: plain shared buffers. */
+  arena: Arena | null;
 }
 
 /** Splits the matrix into near and far blocks. Rows and columns share one tree (a square system). */
@@ -117,57 +122,74 @@ export function isLowRank(b: DenseBlock | LowRankBlock): b is LowRankBlock {
   return (b as LowRankBlock).U !== undefined;
 }
 
-/** Packs blocks as they come into shared segments of about `capacity` numbers each. */
+/**
+ * Packs blocks as they come: each pack is gathered in a private buffer of about `capacity`
+ * numbers, then stored at its exact size in the arena (or, without one or past its 4 GiB, in a
+ * shared buffer of its own).
+ */
 export class PackWriter {
   readonly packs: BlockPack[] = [];
-  private current: BlockPack | null = null;
+  private heads: Int32Array;
+  private values: Float32Array;
+  private count = 0;
   private used = 0;
 
-  constructor(private readonly capacity = 1 << 22, private readonly maxBlocks = 1 << 14) {}
+  constructor(
+    private readonly arena: Arena | null = null,
+    private readonly capacity = 1 << 22,
+    private readonly maxBlocks = 1 << 14,
+  ) {
+    this.heads = new Int32Array(6 * maxBlocks);
+    this.values = new Float32Array(capacity);
+  }
 
   add(b: DenseBlock | LowRankBlock): void {
     const low = isLowRank(b);
     const size = low ? b.rank * (b.m + b.n) : b.m * b.n;
-    let p = this.current;
-    if (!p || p.count === this.maxBlocks || this.used + size > p.values.length) {
+    if (this.count === this.maxBlocks || this.used + size > this.values.length) {
       this.close();
-      p = this.current = {
-        heads: new Int32Array(new SharedArrayBuffer(24 * this.maxBlocks)),
-        count: 0,
-        values: new Float32Array(new SharedArrayBuffer(4 * Math.max(size, this.capacity))),
-      };
-      this.used = 0;
+      if (size > this.values.length) this.values = new Float32Array(size);
     }
-    const h = 6 * p.count++;
-    p.heads[h] = b.r0;
-    p.heads[h + 1] = b.m;
-    p.heads[h + 2] = b.c0;
-    p.heads[h + 3] = b.n;
-    p.heads[h + 4] = low ? b.rank : -1;
-    p.heads[h + 5] = this.used;
+    const h = 6 * this.count++;
+    this.heads[h] = b.r0;
+    this.heads[h + 1] = b.m;
+    this.heads[h + 2] = b.c0;
+    this.heads[h + 3] = b.n;
+    this.heads[h + 4] = low ? b.rank : -1;
+    this.heads[h + 5] = this.used;
     if (low) {
-      p.values.set(b.U, this.used);
-      p.values.set(b.V, this.used + b.U.length);
-    } else p.values.set(b.data, this.used);
+      this.values.set(b.U, this.used);
+      this.values.set(b.V, this.used + b.U.length);
+    } else this.values.set(b.data, this.used);
     this.used += size;
   }
 
-  /** The packs, the last one trimmed to its contents. */
   finish(): BlockPack[] {
     this.close();
     return this.packs;
   }
 
   private close(): void {
-    const p = this.current;
-    if (!p) return;
-    this.current = null;
-    if (p.count === 0) return;
-    // Trim the unused tail (a copy of one segment at most).
-    const values = this.used < p.values.length ? sharedCopy(p.values.subarray(0, this.used)) : p.values;
-    const heads = 6 * p.count < p.heads.length ? sharedCopy(p.heads.subarray(0, 6 * p.count)) : p.heads;
-    this.packs.push({ heads, count: p.count, values });
+    if (this.count === 0) return;
+    this.packs.push(storePack(this.arena, this.heads.subarray(0, 6 * this.count), this.count, this.values.subarray(0, this.used)));
+    this.count = 0;
+    this.used = 0;
+    if (this.values.length > this.capacity) this.values = new Float32Array(this.capacity);
   }
+}
+
+function storePack(arena: Arena | null, heads: Int32Array, count: number, values: Float32Array): BlockPack {
+  if (arena) {
+    const h = arenaAlloc(arena, heads.byteLength);
+    const v = h < 0 ? -1 : arenaAlloc(arena, values.byteLength);
+    if (v >= 0) {
+      const H = arenaInt32(arena, h, heads.length), V = arenaFloat32(arena, v, values.length);
+      H.set(heads);
+      V.set(values);
+      return { heads: H, count, values: V, wasm: true };
+    }
+  }
+  return { heads: sharedCopy(heads), count, values: sharedCopy(values), wasm: false };
 }
 
 function sharedCopy<T extends Float32Array | Int32Array>(a: T): T {
@@ -181,8 +203,18 @@ function sharedCopy<T extends Float32Array | Int32Array>(a: T): T {
  * ys[v·n + i] += Σ_j A_ij · xs[v·n + j] over blocks [b0, b1) of one pack, for the K vectors stacked
  * in xs and ys (tree order). One pass over the stored numbers serves all K vectors, four or two at
  * a time in the inner loops (each stored number is loaded once per group).
+ *
+ * With `kernel` (which the caller passes only when xs and ys are views into the arena too), a pack
+ * in the arena goes through the SIMD kernel, two vectors a pass; the rest in JavaScript.
  */
-export function packProduct(p: BlockPack, b0: number, b1: number, xs: Float64Array, ys: Float64Array, K: number, n: number): void {
+export function packProduct(p: BlockPack, b0: number, b1: number, xs: Float64Array, ys: Float64Array, K: number, n: number, kernel?: ProductKernel | null): void {
+  if (kernel && p.wasm) {
+    const H = p.heads.byteOffset, A = p.values.byteOffset, X = xs.byteOffset, Y = ys.byteOffset, step = 8 * n;
+    let v = 0;
+    for (; v + 1 < K; v += 2) kernel.blocks2(H, b0, b1, A, X + v * step, Y + v * step, X + (v + 1) * step, Y + (v + 1) * step);
+    if (v < K) kernel.blocks1(H, b0, b1, A, X + v * step, Y + v * step);
+    return;
+  }
   let v = 0;
   for (; v + 3 < K; v += 4) packProductQuad(p, b0, b1, xs, ys, v * n, n);
   if (v + 1 < K) {

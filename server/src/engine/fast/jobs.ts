@@ -8,6 +8,7 @@ import { evaluateTree, type PanelTree } from './treecode';
 import { applyBlocks, factorBlocks, type BlockSolveData } from './block-jacobi';
 import { fillDenseRows, fillThinRows } from '../bem3d/system';
 import { productMany } from '../linear/solver';
+import { kernelFor } from './arena';
 import type { Image } from '../bem3d/images';
 
 /** What a thread needs to fill blocks of the panel matrix: plain arrays only (they cross threads). */
@@ -22,6 +23,8 @@ export interface AssembleJob {
   /** 5 per task: r0, m, c0, n, far (0/1). */
   tasks: Int32Array;
   eps: number;
+  /** The arena's memory the packs go to (arena.ts); null: shared buffers of their own. */
+  memory: WebAssembly.Memory | null;
   /** Shared: next task to take. */
   counter: Int32Array;
   chunk: number;
@@ -34,7 +37,7 @@ export interface AssembleJob {
 export function runAssemble(job: AssembleJob, P?: Panels, isCancelled?: () => boolean): BlockPack[] {
   const panels = P ?? preparePanels({ vertices: job.vertices, triangles: job.triangles });
   const src = panelEntrySource(panels, job.points, job.scale, job.images);
-  const out = new PackWriter();
+  const out = new PackWriter(job.memory ? { memory: job.memory } : null);
   const count = job.tasks.length / 5;
   for (;;) {
     if (isCancelled?.()) {
@@ -62,6 +65,8 @@ export interface ProductJob {
   packs: BlockPack[];
   /** 3 per item: pack index, first block, end block. */
   items: Int32Array;
+  /** The arena's memory when xs, ys and the packs in it are views into it (the SIMD kernel runs there). */
+  memory: WebAssembly.Memory | null;
   /** K vectors of n, tree order (shared). */
   xs: Float64Array;
   /** threads × K × n (shared): one slice per thread. */
@@ -78,12 +83,13 @@ export function runProduct(job: ProductJob): void {
   const t = Atomics.add(job.slot, 0, 1);
   const ys = job.ys.subarray(t * K * n, (t + 1) * K * n);
   ys.fill(0);
+  const kernel = job.memory ? kernelFor(job.memory) : null;
   const count = job.items.length / 3;
   for (;;) {
     const k = Atomics.add(job.counter, 0, 1);
     if (k >= count) break;
     const o = 3 * k;
-    packProduct(job.packs[job.items[o]], job.items[o + 1], job.items[o + 2], job.xs, ys, K, n);
+    packProduct(job.packs[job.items[o]], job.items[o + 1], job.items[o + 2], job.xs, ys, K, n, kernel);
   }
 }
 

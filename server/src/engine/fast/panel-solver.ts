@@ -1,8 +1,9 @@
 // The fast solver for a panel mesh, with its parallel assembly: the entry points the 3D solver
 // and the benchmark call. See fast-solver.ts for the method and hmatrix.ts for why.
 import { preparePanels, type Panels } from '../kernels/triangle';
-import { buildFastSolver, productHere, type BlockProduct, type FastSolver, type FastSolverOptions, type FastWork } from './fast-solver';
+import { buildFastSolver, productHere, productVectors, type BlockProduct, type FastSolver, type FastSolverOptions, type FastWork } from './fast-solver';
 import { type BlockPack, type BlockTask, type HMatrix } from './hmatrix';
+import type { Arena } from './arena';
 import { productItems, runAssemble, runFactor, runPrecondition, runProduct, type AssembleJob, type FactorJob, type PreconditionJob, type ProductJob } from './jobs';
 import { blockSolveHere, type BlockFactorRunner, type BlockSolveRunner } from './block-jacobi';
 import { panelEntrySource, panelExtent, type ImageMap } from './panel-entries';
@@ -36,7 +37,7 @@ export function buildPanelSolver(sys: PanelSystem, options: Partial<PanelSolverO
   const work: FastWork =
     threads > 1
       ? {
-          fill: (tasks: BlockTask[], order: Int32Array, eps: number) => fillParallel(sys, P, tasks, order, eps, threads, isCancelled),
+          fill: (tasks: BlockTask[], order: Int32Array, eps: number, arena: Arena | null) => fillParallel(sys, P, tasks, order, eps, arena, threads, isCancelled),
           product: parallelProduct(threads),
           blockSolve: parallelBlockSolve(threads),
           factor: parallelFactor(threads),
@@ -74,12 +75,16 @@ function parallelProduct(threads: number): BlockProduct {
       list = shared(productItems(H.packs, 32 * threads));
       items.set(H, list);
     }
+    // In the arena when there is one (the SIMD kernel reaches only its memory), else in shared buffers.
+    const area = productVectors(H, K, threads);
+    if (area) area.xs.set(xs.subarray(0, K * n));
     const job: ProductJob = {
       kind: 'product',
       packs: H.packs,
       items: list,
-      xs: shared(xs),
-      ys: new Float64Array(new SharedArrayBuffer(8 * threads * K * n)),
+      memory: area ? H.arena!.memory : null,
+      xs: area ? area.xs : shared(xs),
+      ys: area ? area.ys : new Float64Array(new SharedArrayBuffer(8 * threads * K * n)),
       K,
       n,
       counter: new Int32Array(new SharedArrayBuffer(4)),
@@ -106,6 +111,7 @@ function fillParallel(
   tasks: BlockTask[],
   order: Int32Array,
   eps: number,
+  arena: Arena | null,
   threads: number,
   isCancelled?: () => boolean,
 ): BlockPack[] {
@@ -123,6 +129,7 @@ function fillParallel(
     order: shared(order),
     tasks: shared(flat),
     eps,
+    memory: arena?.memory ?? null,
     counter: new Int32Array(new SharedArrayBuffer(4)),
     chunk: 16,
   };
