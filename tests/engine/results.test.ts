@@ -2,6 +2,7 @@
 import { describe, expect, it } from 'vitest';
 import { EPSILON_0 } from '../../grammar/scene';
 import { solveScene } from '../../server/src/engine/index';
+import { COARSE_MAX_PANELS, createCache3d, solve3d, type Solve3dOptions } from '../../server/src/engine/solve';
 import { sliceGrid, TREECODE_ABOVE } from '../../server/src/engine/evaluate';
 import { electrode, R0, scene3d, sphere } from './scenes';
 
@@ -154,5 +155,30 @@ describe('entry point', () => {
     expect(r.stats.levels.length).toBe(1);
     expect(r.stats.panels).toBeLessThan(2420 / 3);
     expect(r.electrodes[0].capacitanceConvergence.extrapolated).toBeNull();
+  });
+
+  it('keeps the coarse level within its panel budget, with an honest panel count, and the full level estimates against scale 2 as before', () => {
+    const a = 0.3;
+    const s = scene3d({ mesh: { kind: 'preset', preset: 'coarse' }, electrodes: [electrode('s', sphere([0, 0, 0], a))] });
+    const cache = createCache3d();
+    const options = (level: 'coarse' | 'full', coarsePanels?: number): Solve3dOptions => ({ maxPanels: 20000, maxGridCells: 1000, level, convergence: true, cache, coarsePanels });
+    const free = solve3d(s, options('coarse', 1e9))!;
+    const coarse = solve3d(s, options('coarse', 100))!;
+    expect(coarse.stats.panels).toBeLessThanOrEqual(100);
+    expect(coarse.stats.panels).toBeLessThan(free.stats.panels);
+    expect(coarse.stats.levels).toEqual([coarse.stats.panels]);
+    // Still a solve of its own mesh: C = 4πε0·a for a sphere (closed form), within the coarse mesh's
+    // flat-panel error (about −4/N relative, methods.md; 3× that allowed).
+    const C = 4 * Math.PI * EPSILON_0 * a;
+    expect(Math.abs(coarse.electrodes[0].capacitance / C - 1)).toBeLessThan(12 / coarse.stats.panels);
+    const full = solve3d(s, options('full', 100))!;
+    expect(full.stats.levels).toEqual([free.stats.panels, full.stats.panels]);
+  });
+
+  it('the default coarse budget bounds a fine mesh', () => {
+    const s = scene3d({ mesh: { kind: 'preset', preset: 'fine' }, electrodes: [electrode('s', sphere([0, 0, 0], 0.3))] });
+    const r = solveScene(s, { level: 'coarse' })!;
+    expect(r.stats.panels).toBeLessThanOrEqual(COARSE_MAX_PANELS);
+    expect(r.stats.panels).toBeGreaterThan(COARSE_MAX_PANELS / 4);
   });
 });

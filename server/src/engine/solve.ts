@@ -69,6 +69,8 @@ export interface Solve3dOptions {
   superpose?: boolean;
   /** Given meshes (coarsest first) with their cache keys, instead of the scene's levels (adaptive.ts). */
   meshes?: { mesh: Mesh; key: string }[];
+  /** Most panels of the 'coarse' level (default COARSE_MAX_PANELS; see coarseMesh). */
+  coarsePanels?: number;
 }
 
 /**
@@ -94,6 +96,43 @@ function levelMesh(scene: Scene3d, scale: number, maxPanels: number, cache: Cach
   const entry = { mesh, scale: s, coarsened };
   remember(cache.meshes, key, entry, 8);
   return entry;
+}
+
+/**
+ * The coarse level's panel budget. The coarse picture is there to come first, so its cost must not
+ * grow with the scene: the coarse level is the scale-2 mesh (about 4× fewer panels than the scene's
+ * mesh) when that has at most this many panels, else the first mesh of the scales 2·2^(k/4),
+ * k = 1, 2, ... (each about 0.7× the panels of the one before) that has. Assembly and the dense
+ * solve grow as N², the slices as N·log N, so this bounds the coarse picture at any scene size
+ * (measured in scripts/bench-lsp.ts: see DEVELOPERS.md, live editing). The scales are a fixed
+ * ladder, so that an edit that leaves the panel count near the same keeps the same scale, and with
+ * it the matrix entries of the electrodes it left alone (bem3d/reuse.ts).
+ */
+export const COARSE_MAX_PANELS = 600;
+const COARSE_SCALE_STEP = 2 ** 0.25;
+/** Rungs of the ladder tried at most (scale 2 to 2·2^(12/4) = 16): beyond, the shapes' fewest-segments floors decide the count. */
+const COARSE_MAX_STEPS = 12;
+
+/** The coarse level's mesh: the scale-2 mesh, or a coarser rung of the ladder that fits the budget (see COARSE_MAX_PANELS). */
+function coarseMesh(scene: Scene3d, budget: number, maxPanels: number, cache: Cache3d, kind: SolverKind | 'auto' | undefined) {
+  const base = levelMesh(scene, 2, maxPanels, cache, kind);
+  const n = base.mesh.area.length;
+  if (n <= budget || base.coarsened) return base;
+  const key = `${geometryKey(scene)}|coarse ${budget}|${maxPanels}|${kind ?? 'auto'}`;
+  const hit = cache.meshes.get(key);
+  if (hit) return hit;
+  // Panels go about as scale⁻², so the rung that should fit is k = ⌈2·log2(n/budget)⌉; finer ones are not tried.
+  let k = Math.max(1, Math.min(COARSE_MAX_STEPS, Math.ceil(2 * Math.log2(n / budget))));
+  let best = { mesh: meshForScene(scene, 2 * COARSE_SCALE_STEP ** k), scale: 2 * COARSE_SCALE_STEP ** k, coarsened: false };
+  while (best.mesh.area.length > budget && k < COARSE_MAX_STEPS) {
+    k++;
+    const scale = 2 * COARSE_SCALE_STEP ** k;
+    const mesh = meshForScene(scene, scale);
+    // Counts step down unevenly (the shapes' fewest-segments floors): a rung no smaller is passed over.
+    if (mesh.area.length < best.mesh.area.length) best = { mesh, scale, coarsened: false };
+  }
+  remember(cache.meshes, key, best, 8);
+  return best;
 }
 
 export interface LevelOutcome {
@@ -254,14 +293,16 @@ export function solve3d(scene: Scene3d, o: Solve3dOptions): Result | null {
     diagnostics.push(diagnostic('VS406', g.range, `Only one ground plane per axis is supported: this plane at ${g.axis} = ${formatQuantity(g.at, 'length')} is ignored.`));
   }
   const geometry = geometryKey(scene);
-  // Level scales: 'coarse' is the scale-2 mesh alone; 'full' is scale 1, with scale 2 for the estimate.
+  // Level scales: 'coarse' is the scale-2 mesh within the coarse panel budget (coarseMesh) alone;
+  // 'full' is scale 1, with scale 2 for the estimate.
   const scales = o.level === 'coarse' ? [2] : o.convergence ? [2, 1] : [1];
   const outcomes: LevelOutcome[] = [];
   let coarsened = false;
   let fineScale = 1;
   let t = performance.now();
+  const budget = o.coarsePanels ?? COARSE_MAX_PANELS;
   const levels = o.meshes ?? scales.map((scale) => {
-    const m = levelMesh(scene, scale, o.maxPanels, o.cache, o.solver);
+    const m = o.level === 'coarse' ? coarseMesh(scene, budget, o.maxPanels, o.cache, o.solver) : levelMesh(scene, scale, o.maxPanels, o.cache, o.solver);
     coarsened ||= m.coarsened;
     fineScale = m.scale;
     return { mesh: m.mesh, key: `${geometry}|${m.scale}|${o.solver ?? 'auto'}` };

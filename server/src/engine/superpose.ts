@@ -446,18 +446,21 @@ function fromLast(s: Stored, level: Level3d, images: Image[], potentials: readon
 }
 
 /**
- * Builds, in the background, the stored grids that the latest uses of the most recently used levels
- * (`levels` of them: a geometry's coarse and full level) went through, the cheapest first, in
- * resumable steps. True when they are all complete; false when stopped by isCancelled (what was
- * built is kept). The levels are those of the engine cache (index.ts EngineCache, 3d store).
+ * Builds, in the background, the stored grids that the latest uses of the levels of the most
+ * recently used geometry went through (at most `levels` of them: its coarse level, and the full
+ * solve's two, its estimate's and its own; solve.ts), the cheapest first, in resumable steps. True
+ * when they are all complete; false when stopped by isCancelled (what was built is kept). The
+ * levels are those of the engine cache (index.ts EngineCache, 3d store), keyed `geometry|scale|solver`.
  */
-export function warmStoredGrids(cache: EngineCache, isCancelled: () => boolean, levels = 2): boolean {
+export function warmStoredGrids(cache: EngineCache, isCancelled: () => boolean, levels = 3): boolean {
   const c3 = cache.store.get('3d') as Cache3d | undefined;
   if (!c3) return true;
-  const used = [...c3.levels.values()]
-    .map((level) => ({ level, store: stores.get(level) }))
-    .filter((u): u is { level: Level3d; store: LevelStore } => u.store !== undefined && u.store.uses > 0)
+  const geometryOf = (key: string) => key.slice(0, key.lastIndexOf('|', key.lastIndexOf('|') - 1));
+  const used = [...c3.levels.entries()]
+    .map(([key, level]) => ({ geometry: geometryOf(key), level, store: stores.get(level) }))
+    .filter((u): u is { geometry: string; level: Level3d; store: LevelStore } => u.store !== undefined && u.store.uses > 0)
     .sort((a, b) => b.store.lastUse - a.store.lastUse)
+    .filter((u, _, all) => u.geometry === all[0].geometry)
     .slice(0, levels);
   const work = used.flatMap(({ level, store }) =>
     [...store.slices.values(), ...store.probes.values(), ...(store.thin ? [store.thin] : [])]
