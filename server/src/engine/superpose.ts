@@ -77,6 +77,8 @@ interface Stored {
    * same drive, floating electrodes following it) is then last + α·grid, with no evaluation.
    */
   directions: { d: number[]; values: Float64Array }[];
+  /** Points per build step, fitted to STEP_MS by the last build (see nextStep). */
+  step?: number;
   /** How the last use evaluated (what a build in the background needs), and which use of the level it was. */
   use: { images: Image[]; charges: Scene3d['charges']; ev: Evaluator; at: number } | null;
 }
@@ -108,12 +110,21 @@ let clock = 0;
 export const MAX_STORED_VALUES = 2e7;
 
 /**
- * Points per step of a treecode build and of a direct one: small steps, so that a build in the
- * background stops soon when a job comes (and stays on one thread: the treecode splits batches
- * over threads only from 2048 points).
+ * A build goes in steps of about this many milliseconds, so that a build in the background stops
+ * soon when a job comes: the step's point count is fitted to the time the last step took (a fixed
+ * 256 points took 50-150 ms a step on the 2k-panel samples' full level, measured in the language
+ * server, and a drive edit waited that long for the worker). Steps stay under 2048 points, so the
+ * treecode keeps to one thread (it splits batches over threads from 2048 points).
  */
-const TREE_CHUNK = 256;
-const DIRECT_CHUNK = 256;
+const STEP_MS = 4;
+const FIRST_STEP = 16;
+const MAX_STEP = 1024;
+
+/** The next step's point count, from the last one's and the time it took. */
+function nextStep(points: number, ms: number): number {
+  const fitted = ms > 0 ? (points * STEP_MS) / ms : 2 * points;
+  return Math.max(4, Math.min(MAX_STEP, 2 * points, Math.round(fitted)));
+}
 
 function storeOf(level: Level3d): LevelStore {
   let s = stores.get(level);
@@ -335,27 +346,32 @@ function complete(s: Stored, level: Level3d, images: Image[], charges: Scene3d['
   const all = solutions(s, level);
   const states = level.unit.map((u) => unitState(level, u, images, []));
   if (s.free) states.push(unitState(level, s.free.of.x, images, charges));
+  let step = s.step ?? FIRST_STEP;
   if (onePass(level, ev)) {
     // Every solution that lacks a chunk gets it in the same pass.
-    for (let a = Math.min(...all.map((u) => u.filled)); a < m; a += DIRECT_CHUNK) {
+    for (let a = Math.min(...all.map((u) => u.filled)); a < m; ) {
       if (isCancelled?.()) return false;
-      const b = Math.min(m, a + DIRECT_CHUNK);
+      const t = performance.now();
+      const b = Math.min(m, a + step);
       const which = all.map((u, v) => (u.filled < b ? v : -1)).filter((v) => v >= 0);
       const outs = direct(which.map((v) => states[v]), s.pts.subarray(3 * a, 3 * b), (ev as { mode: EvalMode }).mode);
       which.forEach((v, i) => {
         valuesOf(all[v], m).set(outs[i], 4 * a);
         all[v].filled = b;
       });
+      step = s.step = nextStep(b - a, performance.now() - t);
+      a = b;
     }
     return true;
   }
-  const chunk = ev.tree ? TREE_CHUNK : DIRECT_CHUNK;
   for (let v = 0; v < all.length; v++) {
     const u = all[v];
     while (u.filled < m) {
       if (isCancelled?.()) return false;
-      const b = Math.min(m, u.filled + chunk);
+      const t = performance.now();
+      const b = Math.min(m, u.filled + step);
       valuesOf(u, m).set(valuesAt(states[v], s.pts.subarray(3 * u.filled, 3 * b), ev), 4 * u.filled);
+      step = s.step = nextStep(b - u.filled, performance.now() - t);
       u.filled = b;
     }
   }
