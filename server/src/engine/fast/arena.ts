@@ -17,6 +17,8 @@ export interface Arena {
 
 /** The product kernel's entry points; addresses are byte offsets into the arena's memory. */
 export interface ProductKernel {
+  /** Σ a[k]·x[k] for k < len: a single precision, x double. */
+  dot1(a: number, x: number, len: number): number;
   blocks1(heads: number, b0: number, b1: number, values: number, x: number, y: number): void;
   blocks2(heads: number, b0: number, b1: number, values: number, x1: number, y1: number, x2: number, y2: number): void;
 }

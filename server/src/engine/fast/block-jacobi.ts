@@ -18,7 +18,13 @@
 // so its GMRES count grows with N. Measured on a sphere beside a box, GMRES to 1e-8: 31 rounds at
 // 4k panels with block Jacobi alone; with the coarse level 21 at 4k and 20 at 16k (an additive
 // coarse level, M₁⁻¹ + Q, gave 23 and 31-36: it barely helped).
+//
+// With an arena (arena.ts), the factors and A·Rᵀ are kept there in single precision (the factors are
+// computed in double, then rounded: M stays one fixed linear operator, a few 1e-8 from the double
+// one, which is all a preconditioner needs), and every row of the solves is a dot product of the
+// SIMD kernel (product-kernel.wat dot1).
 import { forEachBlock, type HMatrix } from './hmatrix';
+import { arenaAlloc, arenaFloat32, arenaFloat64, kernelFor, type Arena, type ProductKernel } from './arena';
 
 /**
  * What applying the two levels to a range of blocks needs: plain arrays (the large ones in shared
@@ -29,17 +35,23 @@ export interface BlockSolveData {
   start: Int32Array;
   size: Int32Array;
   /** All blocks' LU factors one after another (row-major, unit lower part implied); block k from luOff[k]. */
-  lu: Float64Array;
+  lu: Float64Array | Float32Array;
   luOff: Int32Array;
   /** Row swaps of all blocks, block k's at positions start[k] .. start[k] + size[k]. */
   pivot: Int32Array;
   /** The coarse level's A·Rᵀ (N×G) and the coarse cluster of each tree position; null without it. */
   coarse: { G: number; AR: Float32Array; owner: Int32Array } | null;
+  /**
+   * The arena's memory when lu (single precision) and AR are views into it: the vectors passed to
+   * applyBlocks must then be too, and the rows go through the SIMD kernel.
+   */
+  memory: WebAssembly.Memory | null;
 }
 
 export interface BlockJacobi extends BlockSolveData {
   /** The coarse level's clusters and the LU of A_c; null when there is one cluster only. */
   coarseSolve: Coarse | null;
+  arena: Arena | null;
 }
 
 /**
@@ -122,11 +134,24 @@ export function buildBlockJacobi(H: HMatrix, blockSize: number, withCoarse = tru
   }
   let coarse: BlockSolveData['coarse'] = null;
   let coarseSolve: Coarse | null = null;
+  let coarseInArena = true;
   if (withCoarse) {
     const cs = clusters(H, Math.max(blockSize, Math.ceil(H.size / MAX_COARSE)));
-    if (cs.start.length > 1) ({ coarse, coarseSolve } = buildCoarse(H, cs.start, cs.size));
+    if (cs.start.length > 1) ({ coarse, coarseSolve, inArena: coarseInArena } = buildCoarse(H, cs.start, cs.size));
   }
-  return { start, size, lu, luOff, pivot, coarse, coarseSolve };
+  // The factors go to the arena (rounded to single precision) when A·Rᵀ is there too, or there is none.
+  const lu32 = H.arena && coarseInArena ? arenaCopy32(H.arena, lu) : null;
+  const arena = lu32 ? H.arena : null;
+  return { start, size, lu: lu32 ?? lu, luOff, pivot, coarse, coarseSolve, arena, memory: arena ? arena.memory : null };
+}
+
+/** A single-precision copy in the arena; null past its 4 GiB. */
+function arenaCopy32(arena: Arena, a: Float64Array): Float32Array | null {
+  const at = arenaAlloc(arena, 4 * a.length);
+  if (at < 0) return null;
+  const out = arenaFloat32(arena, at, a.length);
+  out.set(a);
+  return out;
 }
 
 /** Most coarse clusters, about: A·Rᵀ holds N × G numbers (100 MB at 100k panels) and costs N·G per step. */
@@ -150,11 +175,13 @@ function clusters(H: HMatrix, most: number): { start: Int32Array; size: Int32Arr
 }
 
 /** A·Rᵀ from the stored blocks (a low-rank block U Vᵀ adds U·(R Vᵀ)ᵀ), then A_c = R·(A·Rᵀ). */
-function buildCoarse(H: HMatrix, start: Int32Array, size: Int32Array): { coarse: NonNullable<BlockSolveData['coarse']>; coarseSolve: Coarse } {
+function buildCoarse(H: HMatrix, start: Int32Array, size: Int32Array): { coarse: NonNullable<BlockSolveData['coarse']>; coarseSolve: Coarse; inArena: boolean } {
   const G = start.length, N = H.size;
   const owner = new Int32Array(new SharedArrayBuffer(4 * N));
   for (let k = 0; k < G; k++) owner.fill(k, start[k], start[k] + size[k]);
-  const AR = new Float32Array(new SharedArrayBuffer(4 * N * G));
+  // In the arena when there is one (fresh arena space is zero), so that the SIMD kernel reaches it.
+  const at = H.arena ? arenaAlloc(H.arena, 4 * N * G) : -1;
+  const AR = at >= 0 ? arenaFloat32(H.arena!, at, N * G) : new Float32Array(new SharedArrayBuffer(4 * N * G));
   forEachBlock(H, (r0, m, c0, n, rank, values, off) => {
     if (rank < 0) {
       for (let a = 0; a < m; a++) {
@@ -181,7 +208,7 @@ function buildCoarse(H: HMatrix, start: Int32Array, size: Int32Array): { coarse:
     const I = owner[p] * G, o = p * G;
     for (let J = 0; J < G; J++) Ac[I + J] += AR[o + J];
   }
-  return { coarse: { G, AR, owner }, coarseSolve: { G, start, size, lu: Ac, pivot: luFactor(Ac, G) } };
+  return { coarse: { G, AR, owner }, coarseSolve: { G, start, size, lu: Ac, pivot: luFactor(Ac, G) }, inArena: at >= 0 };
 }
 
 /**
@@ -200,7 +227,7 @@ export function applyBlockJacobiMany(P: BlockJacobi, rs: Float64Array[], zs: Flo
   const K = rs.length, N = P.pivot.length;
   const c = P.coarseSolve;
   const G = c ? c.G : 0;
-  const ys = new Float64Array(new SharedArrayBuffer(8 * Math.max(1, K * G)));
+  const { ys, rs: rsS, zs: zsS } = solveVectors(P, K);
   if (c) {
     rs.forEach((r, v) => {
       const o = v * G;
@@ -212,14 +239,35 @@ export function applyBlockJacobiMany(P: BlockJacobi, rs: Float64Array[], zs: Flo
       luSolve(c.lu, 0, c.pivot, 0, G, ys, o);
     });
   }
-  const rsS = new Float64Array(new SharedArrayBuffer(8 * K * N)), zsS = new Float64Array(new SharedArrayBuffer(8 * K * N));
   rs.forEach((r, v) => rsS.set(r, v * N));
   runner(P, ys, rsS, zsS, K);
   zs.forEach((z, v) => z.set(zsS.subarray(v * N, (v + 1) * N)));
 }
 
-/** See BlockSolveRunner: blocks [k0, k1) of K stacked vectors. */
+const vectorAreas = new WeakMap<BlockJacobi, { ys: Float64Array; rs: Float64Array; zs: Float64Array }>();
+
+/** The stacked vectors of one application (shared): in the arena when the factors are, kept per preconditioner and grown with K. */
+function solveVectors(P: BlockJacobi, K: number): { ys: Float64Array; rs: Float64Array; zs: Float64Array } {
+  const N = P.pivot.length, G = P.coarseSolve ? P.coarseSolve.G : 0;
+  const nY = Math.max(1, K * G), nR = K * N;
+  let a = vectorAreas.get(P);
+  if (!a || a.ys.length < nY || a.rs.length < nR) {
+    const arena = P.memory ? P.arena : null;
+    const at = arena ? arenaAlloc(arena, 8 * (nY + 2 * nR)) : -1;
+    const all = at >= 0 ? arenaFloat64(arena!, at, nY + 2 * nR) : new Float64Array(new SharedArrayBuffer(8 * (nY + 2 * nR)));
+    // Past the arena's 4 GiB: the vectors stay outside it, so the rows go through plain JavaScript
+    // (which reads the factors in the arena like any array).
+    if (at < 0) P.memory = null;
+    a = { ys: all.subarray(0, nY), rs: all.subarray(nY, nY + nR), zs: all.subarray(nY + nR, nY + 2 * nR) };
+    vectorAreas.set(P, a);
+  }
+  return { ys: a.ys.subarray(0, nY), rs: a.rs.subarray(0, nR), zs: a.zs.subarray(0, nR) };
+}
+
+/** See BlockSolveRunner: blocks [k0, k1) of K stacked vectors (with the SIMD kernel when P.memory is set). */
 export function applyBlocks(P: BlockSolveData, ys: Float64Array, rs: Float64Array, zs: Float64Array, K: number, k0: number, k1: number): void {
+  const kernel = P.memory ? kernelFor(P.memory) : null;
+  if (kernel) return applyBlocksKernel(P, ys, rs, zs, K, k0, k1, kernel);
   const N = P.pivot.length, c = P.coarse;
   for (let k = k0; k < k1; k++) {
     const s0 = P.start[k], n = P.size[k];
@@ -241,10 +289,46 @@ export function applyBlocks(P: BlockSolveData, ys: Float64Array, rs: Float64Arra
 }
 
 /**
+ * applyBlocks with every row a dot product of the SIMD kernel: lu (single precision) and A·Rᵀ are
+ * views into the arena, and so are ys, rs and zs (their byte offsets are addresses there).
+ */
+function applyBlocksKernel(P: BlockSolveData, ys: Float64Array, rs: Float64Array, zs: Float64Array, K: number, k0: number, k1: number, kernel: ProductKernel): void {
+  const N = P.pivot.length, c = P.coarse, lu = P.lu, piv = P.pivot, dot = kernel.dot1;
+  const LU = lu.byteOffset, Z = zs.byteOffset;
+  for (let k = k0; k < k1; k++) {
+    const s0 = P.start[k], n = P.size[k], a0 = P.luOff[k];
+    for (let v = 0; v < K; v++) {
+      const o = v * N + s0;
+      // z = r − (A·Rᵀ)·y on the block's rows.
+      if (c) {
+        const G = c.G, AR = c.AR.byteOffset, Y = ys.byteOffset + 8 * v * G;
+        for (let i = 0; i < n; i++) zs[o + i] = rs[o + i] - dot(AR + 4 * (s0 + i) * G, Y, G);
+      } else for (let i = 0; i < n; i++) zs[o + i] = rs[o + i];
+      // LU solve in place (as luSolve): row swaps, then L (unit diagonal) forward, U backward.
+      for (let i = 0; i < n; i++) {
+        const p = piv[s0 + i];
+        if (p !== i) {
+          const t = zs[o + i];
+          zs[o + i] = zs[o + p];
+          zs[o + p] = t;
+        }
+      }
+      const X = Z + 8 * o;
+      for (let i = 1; i < n; i++) zs[o + i] -= dot(LU + 4 * (a0 + i * n), X, i);
+      for (let i = n - 1; i >= 0; i--) {
+        const d = a0 + i * n + i;
+        zs[o + i] = (zs[o + i] - dot(LU + 4 * (d + 1), X + 8 * (i + 1), n - 1 - i)) / lu[d];
+      }
+      if (c) for (let i = 0; i < n; i++) zs[o + i] += ys[v * c.G + c.owner[s0 + i]];
+    }
+  }
+}
+
+/**
  * Solves in place with LU factors from luFactor: x[at .. at+n) ← A⁻¹ x[at .. at+n), the factors
  * at A[a ..] (row-major n×n) and the row swaps at piv[p .. p+n).
  */
-function luSolve(A: Float64Array, a: number, piv: Int32Array, p0: number, n: number, x: Float64Array, at: number): void {
+function luSolve(A: Float64Array | Float32Array, a: number, piv: Int32Array, p0: number, n: number, x: Float64Array, at: number): void {
   for (let i = 0; i < n; i++) {
     const p = piv[p0 + i];
     if (p !== i) {

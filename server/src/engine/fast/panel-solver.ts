@@ -58,7 +58,7 @@ function parallelFactor(threads: number): BlockFactorRunner {
 /** The preconditioner's blocks shared between threads (jobs.ts runPrecondition); on failure, done here. */
 function parallelBlockSolve(threads: number): BlockSolveRunner {
   return (P, ys, rs, zs, K) => {
-    const slim = { start: P.start, size: P.size, lu: P.lu, luOff: P.luOff, pivot: P.pivot, coarse: P.coarse };
+    const slim = { start: P.start, size: P.size, lu: P.lu, luOff: P.luOff, pivot: P.pivot, coarse: P.coarse, memory: P.memory };
     const job: PreconditionJob = { kind: 'precondition', P: slim, ys, rs, zs, K, counter: new Int32Array(new SharedArrayBuffer(4)), chunk: 4 };
     const replies = runParallel(threads, job as unknown as Record<string, unknown>, () => runPrecondition(job));
     if (!replies) blockSolveHere(P, ys, rs, zs, K);

@@ -1,5 +1,6 @@
 ;; The H-matrix product's inner loops in WebAssembly with 128-bit SIMD (hmatrix.ts packProduct
-;; does the same in plain JavaScript, and is the reference the tests compare against).
+;; does the same in plain JavaScript, and is the reference the tests compare against). The
+;; preconditioner's rows (block-jacobi.ts) use its dot product, dot1, too.
 ;;
 ;; Everything lives in one shared memory (arena.ts): the packed blocks (single precision) and the
 ;; vectors (double precision). Per block, 6 i32 at `heads` + 24·b: r0, m, c0, n, rank (−1 for a
@@ -15,7 +16,7 @@
 
   ;; Σ a[k]·x[k] for k < len (a: floats, x: doubles): eight at a time into four sums (so that the
   ;; additions do not wait on each other), then four at a time, then one.
-  (func $dot1 (param $a i32) (param $x i32) (param $len i32) (result f64)
+  (func $dot1 (export "dot1") (param $a i32) (param $x i32) (param $len i32) (result f64)
     (local $end i32) (local $s0 v128) (local $s1 v128) (local $s2 v128) (local $s3 v128) (local $s f64)
     (local.set $end (i32.add (local.get $a) (i32.shl (i32.and (local.get $len) (i32.const -8)) (i32.const 2))))
     (block $out
