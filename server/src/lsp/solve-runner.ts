@@ -11,6 +11,7 @@
 import type { Scene } from '../../../grammar/scene';
 import { solveScene, type EngineCache } from '../engine/index';
 import { warmStoredGrids, withGridBuilding } from '../engine/superpose';
+import { warmStoredGrids2d } from '../engine/planar/warm';
 import type { SolveLevel } from '../protocol';
 import type { FromWorker, SolveJob } from './worker-messages';
 
@@ -88,6 +89,8 @@ export function runSolveJob(
  * there. Returns whether the scene is warm.
  */
 export function warmSolveJob(job: SolveJob, cache: EngineCache, stop: () => boolean, warm: WarmScenes): boolean {
+  // Planar and axisymmetric scenes keep their own stored values (engine/planar/warm.ts).
+  if (job.scene.space !== '3d') return warmStoredGrids2d(job.scene, cache, stop, { maxPanels: job.maxPanels, maxGridCells: job.maxGridCells });
   const key = warmKey(job);
   if (key === null) return false;
   if (warm.has(key)) return true;

@@ -126,8 +126,16 @@ interface Clusters {
   last: Int32Array;
   /** Arc-length offset of each element from the start of its run. */
   offset: Float64Array;
-  /** Proxy sets per cluster, one per order of PROXY_ORDERS up to the accuracy's order (the last the full one); q: p charges per density. */
-  proxies: { x: Float64Array; y: Float64Array; s: Float64Array; w: Float64Array; q: Float64Array }[][];
+  /**
+   * Proxy sets per cluster, one per order of PROXY_ORDERS up to the accuracy's order (the last the
+   * full one), made at their first use (proxySet); q: p charges per density, set for evaluation
+   * `stamp` (setCharges).
+   */
+  proxies: (Proxies | undefined)[][];
+  /** The element each cluster's run starts at (its curve), and the cluster's arc-length span on it. */
+  base: Int32Array;
+  s0: Float64Array;
+  s1: Float64Array;
   /** Child items of each cluster (clusters or elements, as item ids). */
   children: number[][];
   /** Whether the cluster may act through its proxies (an arc cluster must turn by at most MAX_TURN). */
@@ -169,11 +177,21 @@ function sameCurve(a: Element2d, b: Element2d, tol: number): boolean {
   return a.dir === b.dir && Math.abs(a.cx - b.cx) <= tol && Math.abs(a.cy - b.cy) <= tol && Math.abs(a.radius - b.radius) <= tol;
 }
 
+interface Proxies {
+  x: Float64Array;
+  y: Float64Array;
+  s: Float64Array;
+  w: Float64Array;
+  q: Float64Array;
+  stamp: number;
+}
+
 function buildClusters(elements: Element2d[], order: number): Clusters {
   const n = elements.length;
   const first: number[] = [], last: number[] = [], children: number[][] = [], roots: number[] = [], usable: boolean[] = [];
   const centreX: number[] = [], centreY: number[] = [], radius: number[] = [];
   const proxies: Clusters['proxies'] = [];
+  const bases: number[] = [], s0s: number[] = [], s1s: number[] = [];
   const offset = new Float64Array(n);
   const size = elements.reduce((m, el) => Math.max(m, Math.abs(el.x0), Math.abs(el.y0)), 0) || 1;
   const point = new Float64Array(4);
@@ -200,19 +218,10 @@ function buildClusters(elements: Element2d[], order: number): Clusters {
     centreX.push(point[0]);
     centreY.push(point[1]);
     radius.push(0.5 * (s1 - s0));
-    const sets: Clusters['proxies'][number] = [];
-    for (const p of proxyOrders(order)) {
-      const sx = new Float64Array(p), sy = new Float64Array(p), ss = new Float64Array(p);
-      for (let k = 0; k < p; k++) {
-        ss[k] = 0.5 * (s0 + s1) - 0.5 * (s1 - s0) * Math.cos((k * Math.PI) / (p - 1));
-        curvePoint(base, ss[k], point);
-        sx[k] = point[0];
-        sy[k] = point[1];
-      }
-      const w = Float64Array.from({ length: p }, (_, k) => (k % 2 === 0 ? 1 : -1) * (k === 0 || k === p - 1 ? 0.5 : 1));
-      sets.push({ x: sx, y: sy, s: ss, w, q: new Float64Array(0) });
-    }
-    proxies.push(sets);
+    bases.push(start);
+    s0s.push(s0);
+    s1s.push(s1);
+    proxies.push(new Array(proxyOrders(order).length));
     return c;
   };
   for (let a = 0; a < n; ) {
@@ -226,8 +235,46 @@ function buildClusters(elements: Element2d[], order: number): Clusters {
     roots.push(root >= 0 ? root : n + (-1 - root));
     a = b;
   }
-  return { first: Int32Array.from(first), last: Int32Array.from(last), offset, proxies, children, usable, roots, centreX, centreY, radius };
+  return {
+    first: Int32Array.from(first),
+    last: Int32Array.from(last),
+    offset,
+    proxies,
+    base: Int32Array.from(bases),
+    s0: Float64Array.from(s0s),
+    s1: Float64Array.from(s1s),
+    children,
+    usable,
+    roots,
+    centreX,
+    centreY,
+    radius,
+  };
 }
+
+const proxyPoint = new Float64Array(4);
+
+/** Proxy set `set` of cluster k (p = proxyOrders(order)[set] Chebyshev points of its arc length), made at its first use. */
+function proxySet(c: Clusters, elements: Element2d[], k: number, set: number, order: number): Proxies {
+  let px = c.proxies[k][set];
+  if (px) return px;
+  const p = proxyOrders(order)[set];
+  const s0 = c.s0[k], s1 = c.s1[k];
+  const sx = new Float64Array(p), sy = new Float64Array(p), ss = new Float64Array(p);
+  for (let m = 0; m < p; m++) {
+    ss[m] = 0.5 * (s0 + s1) - 0.5 * (s1 - s0) * Math.cos((m * Math.PI) / (p - 1));
+    curvePoint(elements[c.base[k]], ss[m], proxyPoint);
+    sx[m] = proxyPoint[0];
+    sy[m] = proxyPoint[1];
+  }
+  const w = Float64Array.from({ length: p }, (_, m) => (m % 2 === 0 ? 1 : -1) * (m === 0 || m === p - 1 ? 0.5 : 1));
+  px = { x: sx, y: sy, s: ss, w, q: new Float64Array(0), stamp: -1 };
+  c.proxies[k][set] = px;
+  return px;
+}
+
+/** Evaluations so far: a proxy set's charges belong to the evaluation whose number they carry. */
+let evaluations = 0;
 
 /** What depends on the elements alone (Gauss points, clusters), kept per element list and order. */
 const geometries = new WeakMap<Element2d[], Map<number, { rule3: Float64Array; rule5: Float64Array; clusters: Clusters }>>();
@@ -240,31 +287,30 @@ function geometryOf(elements: Element2d[], order: number): { rule3: Float64Array
   return g;
 }
 
-/** Sets every cluster's proxy charges for densities taus (3-point Gauss rule per element): q[b·p + k]. */
-function setCharges(c: Clusters, elements: Element2d[], taus: Float64Array[]): void {
+/** Sets a proxy set's charges for densities taus (3-point Gauss rule per element): q[b·p + k], for evaluation `stamp`. */
+function setCharges(c: Clusters, k: number, px: Proxies, elements: Element2d[], taus: Float64Array[], stamp: number): void {
   const rule = gaussLegendre(3);
-  const l = new Float64Array(64);
+  const l = chargeBasis;
   const K = taus.length;
-  c.proxies.forEach((sets, k) => {
-    for (const px of sets) {
-      const p = px.s.length;
-      if (px.q.length !== p * K) px.q = new Float64Array(p * K);
-      else px.q.fill(0);
-      for (let j = c.first[k]; j < c.last[k]; j++) {
-        const L = elements[j].length;
-        for (let g = 0; g < 3; g++) {
-          basis(c.offset[j] + L * rule.nodes[g], px.s, px.w, l);
-          const lw = L * rule.weights[g];
-          for (let b = 0; b < K; b++) {
-            const q = taus[b][j] * lw;
-            if (q === 0) continue;
-            for (let m = 0; m < p; m++) px.q[b * p + m] += q * l[m];
-          }
-        }
+  const p = px.s.length;
+  if (px.q.length !== p * K) px.q = new Float64Array(p * K);
+  else px.q.fill(0);
+  for (let j = c.first[k]; j < c.last[k]; j++) {
+    const L = elements[j].length;
+    for (let g = 0; g < 3; g++) {
+      basis(c.offset[j] + L * rule.nodes[g], px.s, px.w, l);
+      const lw = L * rule.weights[g];
+      for (let b = 0; b < K; b++) {
+        const q = taus[b][j] * lw;
+        if (q === 0) continue;
+        for (let m = 0; m < p; m++) px.q[b * p + m] += q * l[m];
       }
     }
-  });
+  }
+  px.stamp = stamp;
 }
+
+const chargeBasis = new Float64Array(64);
 
 /**
  * Adds (φ, E_u, E_v) at every cell with mask[idx] ≠ 0 into outs[b][3·idx ..] for each density
@@ -280,7 +326,13 @@ export function gridEvaluate(src: GridSources, grid: Grid2d, mask: Uint8Array, o
   const W = 3 * K;
   if (n === 0 || K === 0) return counts;
   const { rule3, rule5, clusters } = geometryOf(elements, accuracy.order);
-  setCharges(clusters, elements, taus);
+  const stamp = ++evaluations;
+  /** Cluster k's proxy set `set` with this evaluation's charges. */
+  const charged = (k: number, set: number): Proxies => {
+    const px = proxySet(clusters, elements, k, set, accuracy.order);
+    if (px.stamp !== stamp) setCharges(clusters, k, px, elements, taus, stamp);
+    return px;
+  };
   // Elements carrying charge in any density.
   const active = new Uint8Array(n);
   for (const tau of taus) for (let j = 0; j < n; j++) if (tau[j] !== 0) active[j] = 1;
@@ -354,7 +406,7 @@ export function gridEvaluate(src: GridSources, grid: Grid2d, mask: Uint8Array, o
   };
   const addSource = (id: number, set: number, x: number, y: number, into: Float64Array) => {
     if (id >= n) {
-      const px = clusters.proxies[id - n][set];
+      const px = charged(id - n, set);
       const p = px.s.length;
       for (let k = 0; k < p; k++) {
         g[0] = g[1] = g[2] = 0;
@@ -402,7 +454,7 @@ export function gridEvaluate(src: GridSources, grid: Grid2d, mask: Uint8Array, o
 
   const farField: FarField<Nodes | Expansion> =
     src.logScale !== undefined
-      ? (expansionField(accuracy.terms, src.logScale, elements, taus, rule3, rule5, clusters, cx, cy, mirror, stride) as FarField<Nodes | Expansion>)
+      ? (expansionField(accuracy.terms, src.logScale, elements, taus, rule3, rule5, charged, cx, cy, mirror, stride) as FarField<Nodes | Expansion>)
       : (interpolationField(accuracy.order, W, sumAt, acc) as FarField<Nodes | Expansion>);
   const sep2 = accuracy.separation * accuracy.separation;
   const clusterSep2 = CLUSTER_SEPARATION * CLUSTER_SEPARATION;
@@ -485,8 +537,7 @@ export function gridEvaluate(src: GridSources, grid: Grid2d, mask: Uint8Array, o
       farField.gather(here, far, far.length);
       counts.gathered += far.length;
     }
-    // Bisect the longer side.
-    if (i1 - i0 > 1 && (ub - ua >= vb - va || j1 - j0 === 1)) {
+    if (splitsU(grid, i0, i1, j0, j1)) {
       const mid = (i0 + i1) >> 1;
       visit(i0, mid, j0, j1, here, near);
       visit(mid, i1, j0, j1, here, near);
@@ -498,6 +549,40 @@ export function gridEvaluate(src: GridSources, grid: Grid2d, mask: Uint8Array, o
   };
   visit(0, nu, 0, nv, null, items);
   return counts;
+}
+
+/** How a block of cells [i0, i1) × [j0, j1) is bisected: across its longer side (between cell centres), never across a side one cell wide. */
+function splitsU(grid: Grid2d, i0: number, i1: number, j0: number, j1: number): boolean {
+  const ua = grid.u0 + (i0 + 0.5) * grid.du, ub = grid.u0 + (i1 - 0.5) * grid.du;
+  const va = grid.v0 + (j0 + 0.5) * grid.dv, vb = grid.v0 + (j1 - 0.5) * grid.dv;
+  return i1 - i0 > 1 && (ub - ua >= vb - va || j1 - j0 === 1);
+}
+
+/**
+ * The grid's blocks at the first depth of gridEvaluate's bisection that has at least `count` of them,
+ * as cell ranges [i0, i1, j0, j1]. A cell's values do not depend on which other cells are masked
+ * (every choice in gridEvaluate follows the blocks, not the mask), so evaluating these blocks one at
+ * a time gives the same values as one pass, at the cost of their common ancestors' far fields only:
+ * a build that can stop between blocks and go on later.
+ */
+export function gridBlocks(grid: Grid2d, count: number): [number, number, number, number][] {
+  let blocks: [number, number, number, number][] = [[0, grid.nu, 0, grid.nv]];
+  while (blocks.length < count) {
+    const next: [number, number, number, number][] = [];
+    for (const [i0, i1, j0, j1] of blocks) {
+      if (i1 - i0 <= 1 && j1 - j0 <= 1) next.push([i0, i1, j0, j1]);
+      else if (splitsU(grid, i0, i1, j0, j1)) {
+        const mid = (i0 + i1) >> 1;
+        next.push([i0, mid, j0, j1], [mid, i1, j0, j1]);
+      } else {
+        const mid = (j0 + j1) >> 1;
+        next.push([i0, i1, j0, mid], [i0, i1, mid, j1]);
+      }
+    }
+    if (next.length === blocks.length) break;
+    blocks = next;
+  }
+  return blocks;
 }
 
 // ---- interpolation points (any kernel) ----
@@ -542,7 +627,19 @@ interface Expansion {
   im: Float64Array;
 }
 
-function expansionField(terms: number, scale: number, elements: Element2d[], taus: Float64Array[], rule3: Float64Array, rule5: Float64Array, clusters: Clusters, cx: Float64Array, cy: Float64Array, mirror: Mirror | null, stride: number): FarField<Expansion> {
+function expansionField(
+  terms: number,
+  scale: number,
+  elements: Element2d[],
+  taus: Float64Array[],
+  rule3: Float64Array,
+  rule5: Float64Array,
+  charged: (cluster: number, set: number) => Proxies,
+  cx: Float64Array,
+  cy: Float64Array,
+  mirror: Mirror | null,
+  stride: number,
+): FarField<Expansion> {
   const inv2pi = 1 / (2 * Math.PI);
   const K = taus.length;
   const T = terms + 1;
@@ -604,7 +701,7 @@ function expansionField(terms: number, scale: number, elements: Element2d[], tau
           addSource(t, x, y, sign);
         };
         if (j >= n) {
-          const px = clusters.proxies[j - n][set];
+          const px = charged(j - n, set);
           const p = px.s.length;
           for (let k = 0; k < p; k++) {
             for (let b = 0; b < K; b++) qs[b] = px.q[b * p + k];

@@ -23,7 +23,7 @@ import { diagnostic } from '../../../../grammar/diagnostics';
 import type { Convergence, ElectrodeResult, GapResult, Outline, ProbeResult, Result, SliceResult } from '../result';
 import { addElement, assemble, FAR_RATIO, FAR_RULE, farRules, integrateCurve, type KernelAdd, type LineAdd, type Mirror } from './bem2d';
 import { curvePoint, splitPiece, type Element2d, type Piece } from './elements';
-import { gridEvaluate, GRID_COARSE, GRID_FULL, type Grid2d } from './grid2d';
+import { gridBlocks, gridEvaluate, GRID_COARSE, GRID_FULL, type Grid2d } from './grid2d';
 
 type Scene2d = SceneAxisymmetric | ScenePlanar;
 
@@ -31,6 +31,23 @@ type Scene2d = SceneAxisymmetric | ScenePlanar;
 export interface Solve2dOptions extends Pick<SolveOptions, 'maxPanels' | 'maxGridCells' | 'level' | 'convergence' | 'isCancelled' | 'cache' | 'superpose'> {
   /** Multiplies the element size (tests and coarse previews). */
   meshScale?: number;
+  /**
+   * Set by warmStoredGrids2d (planar/warm.ts): build the stored values of drive-only edits for levels
+   * already in the cache (none is factored), and say here whether they are complete.
+   */
+  warm?: { complete: boolean };
+}
+
+/**
+ * A cache whose stored values are built in the background (planar/warm.ts, the language server's
+ * idle work) carries this mark: its live solves never build them, but sum what is stored and
+ * evaluate the rest afresh (one evaluation at most, the same values).
+ */
+export const BACKGROUND_BUILD = '2d-background-build';
+
+/** Whether this solve may build missing stored values (see BACKGROUND_BUILD). */
+function mayBuild(options: Solve2dOptions): boolean {
+  return options.superpose === true || options.cache?.store.get(BACKGROUND_BUILD) !== true;
 }
 
 /** A free charge as the engine sees it: adds its potential and field (per ε, images included). */
@@ -122,6 +139,20 @@ function elementsFor(setup: Space2d, h: number): Element2d[] {
   );
 }
 
+/** Element counts by pieces and size (a drive-only edit then splits no outline to count). */
+const elementCounts = new Map<string, number>();
+
+function elementCount(setup: Space2d, h: number): number {
+  const key = JSON.stringify([setup.pieces, setup.h, h]);
+  let count = elementCounts.get(key);
+  if (count === undefined) {
+    count = elementsFor(setup, h).length;
+    elementCounts.set(key, count);
+    while (elementCounts.size > 64) elementCounts.delete(elementCounts.keys().next().value as string);
+  }
+  return count;
+}
+
 /** A factored level: what depends on the geometry alone, kept in the engine cache between solves. */
 interface Factored {
   elements: Element2d[];
@@ -129,11 +160,151 @@ interface Factored {
   size: number;
   /** Solutions (τ, then the potential at infinity when it is an unknown) for each electrode at 1 V. */
   solved: Float64Array[];
+  /** The free charges' solution of the last use, by their signature. */
+  free?: { key: string; x: Float64Array };
 }
 
-/** Stored slice values per factorization (superposition for drive-only edits), and the drives of its last use. */
-const stored2d = new WeakMap<Factored, Map<string, { outside: number[]; vectors: (Float64Array | null)[]; free: { key: string; values: Float64Array } | null }>>();
+/** The drives and free charges of a factorization's last use. */
 const lastUse2d = new WeakMap<Factored, string>();
+
+/**
+ * Stored values of one set of points for superposition (drive-only and free-charge-only edits): per
+ * unit solution (electrode b at 1 V; then the raw net-charge solution, or null) `width` numbers per
+ * point, and the free charges' values (their induced densities and their direct field) by their
+ * signature. Built chunk by chunk, so that a build can stop and go on later; a chunk counts once
+ * both its unit and its free values are done.
+ */
+interface Stored {
+  vectors: (Float64Array | null)[];
+  unitsDone: Uint8Array;
+  free: { key: string; values: Float64Array; done: Uint8Array };
+}
+
+/** A set of points in chunks, and how to evaluate densities at the points of some chunks. */
+interface PointSet {
+  /** Point indices per chunk. */
+  chunks: Int32Array[];
+  points: number;
+  width: number;
+  /**
+   * `width` values per point for each density (free charges added to those flagged in withFree), at
+   * the points of chunks `ids` in order: the same values whichever chunks are asked together.
+   */
+  evaluate(taus: Float64Array[], withFree: boolean[], ids: number[]): Float64Array[] | null;
+}
+
+/** A slice's cells: the electrode each lies in (−1: none), and those evaluated, by chunk (grid2d.ts gridBlocks). */
+interface SliceLayout {
+  grid: Grid2d;
+  reduced: boolean;
+  inside: Int16Array;
+  mask: Uint8Array;
+  /** The cells evaluated, chunk after chunk; chunks hold positions in this list. */
+  outside: Int32Array;
+  chunks: Int32Array[];
+}
+
+/** Chunks of a slice grid's stored values (a build stops between chunks). */
+const SLICE_CHUNKS = 32;
+
+/** Per factorization: the stored values by point set (thin elements, probes, slices), and the slices' layouts. */
+const stores2d = new WeakMap<Factored, Map<string, Stored>>();
+const layouts2d = new WeakMap<Factored, Map<string, SliceLayout>>();
+
+/** Most point sets stored per factorization. */
+const STORED_SETS = 12;
+
+function storeOf(f: Factored, key: string, set: PointSet, units: number, create: boolean): Stored | null {
+  let byKey = stores2d.get(f);
+  const found = byKey?.get(key);
+  if (found || !create) return found ?? null;
+  if (!byKey) stores2d.set(f, (byKey = new Map()));
+  const size = set.width * set.points;
+  const stored: Stored = {
+    vectors: Array.from({ length: units }, () => new Float64Array(size)),
+    unitsDone: new Uint8Array(set.chunks.length),
+    free: { key: '', values: new Float64Array(size), done: new Uint8Array(set.chunks.length) },
+  };
+  byKey.set(key, stored);
+  while (byKey.size > STORED_SETS) byKey.delete(byKey.keys().next().value as string);
+  return stored;
+}
+
+/** The unit densities of a level: per electrode at 1 V, then the raw net-charge solution (null without one). */
+function unitDensities(level: Level, k: number): (Float64Array | null)[] {
+  const f = level.factored;
+  const n = level.elements.length;
+  const units: (Float64Array | null)[] = f.solved.slice(0, k).map((x) => x.subarray(0, n));
+  units.push(f.solved.length > k ? f.solved[k].subarray(0, n) : null);
+  return units;
+}
+
+function scatter(values: Float64Array, into: Float64Array, set: PointSet, ids: number[]): void {
+  const w = set.width;
+  let o = 0;
+  for (const c of ids) {
+    for (const p of set.chunks[c]) {
+      for (let q = 0; q < w; q++) into[w * p + q] = values[o++];
+    }
+  }
+}
+
+/**
+ * Builds the missing chunks of a store (every unit solution and the free charges in one pass per
+ * chunk). False when cancelled between chunks; what was built is kept.
+ */
+function buildStored(stored: Stored, set: PointSet, level: Level, k: number, freeKey: string, isCancelled?: () => boolean): boolean {
+  if (stored.free.key !== freeKey) stored.free = { key: freeKey, values: new Float64Array(set.width * set.points), done: new Uint8Array(set.chunks.length) };
+  const units = unitDensities(level, k);
+  for (let c = 0; c < set.chunks.length; c++) {
+    if (stored.unitsDone[c] && stored.free.done[c]) continue;
+    if (isCancelled?.()) return false;
+    const which = stored.unitsDone[c] ? [] : units.flatMap((u, b) => (u ? [b] : []));
+    const taus = [...which.map((b) => units[b]!), level.units[k]];
+    const values = set.evaluate(taus, taus.map((_, b) => b === taus.length - 1), [c]);
+    if (!values) return false;
+    which.forEach((b, m) => scatter(values[m], stored.vectors[b]!, set, [c]));
+    scatter(values[values.length - 1], stored.free.values, set, [c]);
+    stored.unitsDone[c] = stored.free.done[c] = 1;
+  }
+  return true;
+}
+
+/**
+ * The driven solution's values at a point set: Σ_b w_b·G_b + G_free where the store's chunks are
+ * complete (w: the electrodes' potentials, then α/(ε·scale) for the net-charge solution), evaluated
+ * afresh from the driven density tau elsewhere (one pass over those chunks), plus `offset` on the
+ * first value of each point (the potential at infinity). Null when cancelled.
+ */
+function drivenValues(stored: Stored | null, set: PointSet, weights: number[], freeKey: string, tau: Float64Array, offset: number): Float64Array | null {
+  const w = set.width;
+  const out = new Float64Array(w * set.points);
+  const usable = stored !== null && stored.free.key === freeKey;
+  const missing: number[] = [];
+  for (let c = 0; c < set.chunks.length; c++) {
+    if (!usable || !stored.unitsDone[c] || !stored.free.done[c]) {
+      missing.push(c);
+      continue;
+    }
+    for (const p of set.chunks[c]) {
+      for (let q = w * p; q < w * p + w; q++) {
+        let v = stored.free.values[q];
+        for (let b = 0; b < stored.vectors.length; b++) {
+          const g = stored.vectors[b];
+          if (g && weights[b] !== 0) v += weights[b] * g[q];
+        }
+        out[q] = v;
+      }
+    }
+  }
+  if (missing.length > 0) {
+    const values = set.evaluate([tau], [true], missing);
+    if (!values) return null;
+    scatter(values[0], out, set, missing);
+  }
+  if (offset !== 0) for (let p = 0; p < set.points; p++) out[w * p] += offset;
+  return out;
+}
 
 /** Most factored levels kept in the cache (each holds an N² matrix factorization). */
 const CACHE_ENTRIES = 4;
@@ -198,6 +369,8 @@ function solveLevel(setup: Space2d, scene: Scene2d, h: number, eps: number, opti
     cache.set(key, f);
     timings[`cached${tag}`] = 1;
   } else {
+    // A warm-up builds stored values for what is cached; it factors nothing.
+    if (options.warm) return null;
     f = factorLevel(setup, elementsFor(setup, h), k, options, timings, tag);
     if (!f) return null;
     if (cache) {
@@ -209,17 +382,21 @@ function solveLevel(setup: Space2d, scene: Scene2d, h: number, eps: number, opti
   const n = elements.length;
   // Free charges with every electrode at 0 V: the conductors carry −(total free charge) when
   // infinity is an unknown (all the flux ends on them).
-  const bFree = new Float64Array(size);
-  const acc = new Float64Array(3);
-  for (let i = 0; i < n; i++) {
-    acc[0] = 0;
-    for (const fr of setup.free) fr.add(elements[i].mx, elements[i].my, false, acc, false);
-    bFree[i] = -acc[0];
+  const freeKey = JSON.stringify([setup.free.map((fr) => [fr.at, fr.value]), eps]);
+  if (f.free?.key !== freeKey) {
+    const bFree = new Float64Array(size);
+    const acc = new Float64Array(3);
+    for (let i = 0; i < n; i++) {
+      acc[0] = 0;
+      for (const fr of setup.free) fr.add(elements[i].mx, elements[i].my, false, acc, false);
+      bFree[i] = -acc[0];
+    }
+    if (setup.infinityUnknown) bFree[n] = -setup.free.reduce((s, fr) => s + fr.total, 0) / (eps * setup.scale);
+    const freeSolved = n === 0 ? [new Float64Array(size)] : f.solver.solve([bFree], { isCancelled: options.isCancelled });
+    if (!freeSolved) return null;
+    f.free = { key: freeKey, x: freeSolved[0] };
   }
-  if (setup.infinityUnknown) bFree[n] = -setup.free.reduce((s, fr) => s + fr.total, 0) / (eps * setup.scale);
-  const freeSolved = n === 0 ? [new Float64Array(size)] : f.solver.solve([bFree], { isCancelled: options.isCancelled });
-  if (!freeSolved) return null;
-  const solved = [...f.solved.slice(0, k), freeSolved[0]];
+  const solved = [...f.solved.slice(0, k), f.free.x];
   if (f.solved.length > k) solved.push(f.solved[k].map((x) => x / (eps * setup.scale)));
   const units = solved.map((x) => x.subarray(0, n) as Float64Array);
   const infinity = solved.map((x) => (setup.infinityUnknown ? x[n] : 0));
@@ -356,13 +533,14 @@ const thinStored = new WeakMap<Factored, { vectors: (Float64Array | null)[]; fre
  * (free charges added to those flagged in withFree), in one pass: each element's field at unit density
  * is evaluated once per point and scaled by every density.
  */
-function thinFields(setup: Space2d, elements: Element2d[], far: Float64Array, taus: Float64Array[], withFree: boolean[]): Float64Array[] {
+function thinFields(setup: Space2d, elements: Element2d[], far: Float64Array, taus: Float64Array[], withFree: boolean[], which: ArrayLike<number>): Float64Array[] {
   const K = taus.length;
-  const outs = taus.map(() => new Float64Array(2 * elements.length));
+  const outs = taus.map(() => new Float64Array(2 * which.length));
   const mid = new Float64Array(3 * K);
   const plus = new Float64Array(3 * K);
   const minus = new Float64Array(3 * K);
-  elements.forEach((el, i) => {
+  Array.prototype.forEach.call(which, (i: number, m: number) => {
+    const el = elements[i];
     if (!el.thin) return;
     const delta = 1e-3 * el.length;
     // Elements beyond NEAR_THIN element lengths are smooth across the two points: the mean of their
@@ -373,11 +551,28 @@ function thinFields(setup: Space2d, elements: Element2d[], far: Float64Array, ta
     fieldsAt(setup, elements, far, taus, [], el.mx + delta * el.nx, el.my + delta * el.ny, plus, near, true);
     fieldsAt(setup, elements, far, taus, [], el.mx - delta * el.nx, el.my - delta * el.ny, minus, near, true);
     for (let b = 0; b < K; b++) {
-      outs[b][2 * i] = mid[3 * b + 1] + 0.5 * (plus[3 * b + 1] + minus[3 * b + 1]);
-      outs[b][2 * i + 1] = mid[3 * b + 2] + 0.5 * (plus[3 * b + 2] + minus[3 * b + 2]);
+      outs[b][2 * m] = mid[3 * b + 1] + 0.5 * (plus[3 * b + 1] + minus[3 * b + 1]);
+      outs[b][2 * m + 1] = mid[3 * b + 2] + 0.5 * (plus[3 * b + 2] + minus[3 * b + 2]);
     }
   });
   return outs;
+}
+
+/** Thin elements per chunk of the stored thin-element fields. */
+const THIN_CHUNK = 16;
+
+/** The thin elements of a level as a point set (two values each: the principal-value field). */
+function thinSet(setup: Space2d, elements: Element2d[], far: Float64Array): PointSet {
+  const thin: number[] = [];
+  elements.forEach((el, i) => el.thin && thin.push(i));
+  const chunks: Int32Array[] = [];
+  for (let a = 0; a < thin.length; a += THIN_CHUNK) chunks.push(Int32Array.from(thin.slice(a, a + THIN_CHUNK)));
+  return {
+    chunks,
+    points: elements.length,
+    width: 2,
+    evaluate: (taus, withFree, ids) => thinFields(setup, elements, far, taus, withFree, ids.flatMap((c) => [...chunks[c]])),
+  };
 }
 
 /** Elements within this many lengths of a thin element are evaluated on both sides of it (thinFields). */
@@ -444,36 +639,40 @@ function fieldsAt(
   }
 }
 
-function surfacePeaks(setup: Space2d, level: Level, d: Driven, k: number, superpose: { freeSignature: string; eps: number } | null = null): SurfacePeak[] {
+/** How a solve uses stored values: whether to build missing ones, the free charges' signature, ε. */
+interface StoredUse {
+  build: boolean;
+  freeKey: string;
+  eps: number;
+  isCancelled?: () => boolean;
+}
+
+/** Superposition weights of the unit solutions (unitDensities) for driven solution d. */
+function weightsOf(d: Driven, eps: number, scale: number): number[] {
+  return [...d.potentials, d.alpha / (eps * scale)];
+}
+
+/** The cached 3-point rules of an element list. */
+const farCache = new WeakMap<Element2d[], Float64Array>();
+function farOf(elements: Element2d[]): Float64Array {
+  let far = farCache.get(elements);
+  if (!far) farCache.set(elements, (far = farRules(elements)));
+  return far;
+}
+
+/** Peak surface field per electrode; null when cancelled. */
+function surfacePeaks(setup: Space2d, level: Level, d: Driven, k: number, use: StoredUse | null): SurfacePeak[] | null {
   const peaks: SurfacePeak[] = Array.from({ length: k }, () => ({ value: 0, at: [NaN, NaN] as Vec2, edge: false }));
   const { elements } = level;
-  const far = farRules(elements);
   let summed: Float64Array | null = null;
-  if (superpose && elements.some((el) => el.thin)) {
-    const f = level.factored;
-    const n = elements.length;
-    let s = thinStored.get(f);
-    if (!s) {
-      // Every unit solution and the free charges in one pass.
-      const taus = f.solved.slice(0, k).map((x) => x.subarray(0, n));
-      const net = f.solved.length > k;
-      if (net) taus.push(f.solved[k].subarray(0, n));
-      taus.push(level.units[k]);
-      const fields = thinFields(setup, elements, far, taus, taus.map((_, b) => b === taus.length - 1));
-      const vectors: (Float64Array | null)[] = fields.slice(0, k);
-      vectors.push(net ? fields[k] : null);
-      thinStored.set(f, (s = { vectors, free: { key: superpose.freeSignature, values: fields[fields.length - 1] } }));
-    }
-    if (s.free?.key !== superpose.freeSignature) s.free = { key: superpose.freeSignature, values: thinFields(setup, elements, far, [level.units[k]], [true])[0] };
-    // Σ_e V_e·E_e + α·E_net/(ε·scale) + E_free.
-    const weights = [...d.potentials, d.alpha / (superpose.eps * setup.scale)];
-    summed = Float64Array.from(s.free.values);
-    s.vectors.forEach((v, b) => {
-      const w = weights[b];
-      if (!v || w === 0) return;
-      for (let i = 0; i < summed!.length; i++) summed![i] += w * v[i];
-    });
-  } else if (elements.some((el) => el.thin)) summed = thinFields(setup, elements, far, [d.tau], [true])[0];
+  if (elements.some((el) => el.thin)) {
+    const set = thinSet(setup, elements, farOf(elements));
+    const units = k + 1;
+    const stored = use ? storeOf(level.factored, 'thin', set, units, use.build) : null;
+    if (stored && use?.build && !buildStored(stored, set, level, k, use.freeKey, use.isCancelled)) return null;
+    summed = drivenValues(use ? stored : null, set, use ? weightsOf(d, use.eps, setup.scale) : [], use?.freeKey ?? '', d.tau, 0);
+    if (!summed) return null;
+  }
   for (let i = 0; i < elements.length; i++) {
     const el = elements[i];
     let magnitude: number;
@@ -494,55 +693,6 @@ function surfacePeaks(setup: Space2d, level: Level, d: Driven, k: number, superp
     }
   }
   return peaks;
-}
-
-// ---- evaluation at points ----
-
-/** Potential and field at (u, v) in the scene's coordinates. */
-function evaluate(setup: Space2d, elements: Element2d[], far: Float64Array, d: Driven, u: number, v: number, acc: Float64Array): void {
-  const [x, y, sign] = setup.toSolver(u, v);
-  fieldAt(setup, elements, far, d, x, y, acc);
-  acc[1] *= sign;
-}
-
-/**
- * Potential and field at (x, y) in the solver's half-plane, from every element, image and free charge:
- * by direct summation (`far` the cached 3-point rules); slice grids go through grid2d.ts.
- */
-function fieldAt(setup: Space2d, elements: Element2d[], far: Float64Array, d: Driven, x: number, y: number, acc: Float64Array): void {
-  acc[0] = setup.infinityUnknown ? d.infinity : 0;
-  acc[1] = 0;
-  acc[2] = 0;
-  const mirror = setup.mirror;
-  addSources(elements, far, d.tau, setup.kernel, setup.line, x, y, acc);
-  if (mirror) {
-    // Images of opposite sign: φ_img(p) = −φ(Mp), E_img(p) = −M·E(Mp).
-    const img = imageAcc;
-    img[0] = img[1] = img[2] = 0;
-    addSources(elements, far, d.tau, setup.kernel, setup.line, mirror.axis === 0 ? 2 * mirror.at - x : x, mirror.axis === 1 ? 2 * mirror.at - y : y, img);
-    acc[0] -= img[0];
-    acc[1] += mirror.axis === 0 ? img[1] : -img[1];
-    acc[2] += mirror.axis === 1 ? img[2] : -img[2];
-  }
-  for (const f of setup.free) f.add(x, y, true, acc, false);
-}
-
-const imageAcc = new Float64Array(3);
-
-function addSources(elements: Element2d[], far: Float64Array, tau: Float64Array, kernel: KernelAdd, line: LineAdd | null, x: number, y: number, acc: Float64Array): void {
-  for (let j = 0; j < elements.length; j++) {
-    const t = tau[j];
-    if (t === 0) continue;
-    const el = elements[j];
-    const ratio = Math.hypot(x - el.mx, y - el.my) / el.length;
-    if (ratio > FAR_RATIO) {
-      for (let q = 0; q < FAR_RULE; q++) {
-        const o = (j * FAR_RULE + q) * 3;
-        kernel(far[o], far[o + 1], x, y, t * far[o + 2], true, acc);
-      }
-    } else if (line && el.kind === 'line') line(el, x, y, t, true, acc);
-    else integrateCurve(el, 0, el.length, x, y, kernel, t, true, acc);
-  }
 }
 
 // ---- outlines of electrodes in a slice ----
@@ -591,12 +741,16 @@ function postSolveDiagnostics(scene: Scene2d, setup: Space2d, electrodes: Electr
   return checks.gaps;
 }
 
-/** A test for points on the far side of the mirror line from the scene's content (electrodes and charges). */
-function behindGround(scene: Scene2d, mirror: Mirror | null): (u: number, v: number) => boolean {
+/** The side of the mirror line the scene's content (electrodes and charges) is on: ±1, or 0 (no mirror, no content, on the line). */
+function groundSide(scene: Scene2d, mirror: Mirror | null): number {
   const box = sceneBounds(scene);
-  if (!mirror || !box) return () => false;
-  const side = Math.sign((box.min[mirror.axis] + box.max[mirror.axis]) / 2 - mirror.at);
-  if (side === 0) return () => false;
+  if (!mirror || !box) return 0;
+  return Math.sign((box.min[mirror.axis] + box.max[mirror.axis]) / 2 - mirror.at);
+}
+
+/** A test for points on the far side of the mirror line from the scene's content. */
+function behindGround(mirror: Mirror | null, side: number): (u: number, v: number) => boolean {
+  if (!mirror || side === 0) return () => false;
   return (u, v) => Math.sign((mirror.axis === 0 ? u : v) - mirror.at) === -side;
 }
 
@@ -615,13 +769,13 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
   let hFine = options.level === 'coarse' ? 2 * setup.h : setup.h;
   // Enforce the element limit on the actual count (the size estimate cannot see per-electrode limits).
   let coarsened = setup.coarsened;
-  for (let count = elementsFor(setup, hFine).length, i = 0; count > setup.maxElements && i < 6; i++) {
+  for (let count = elementCount(setup, hFine), i = 0; count > setup.maxElements && i < 6; i++) {
     hFine *= (1.05 * count) / setup.maxElements;
-    count = elementsFor(setup, hFine).length;
+    count = elementCount(setup, hFine);
     coarsened = true;
   }
   const hs = [hFine];
-  if (levelCount > 1 && elementsFor(setup, 2 * hFine).length < 0.8 * elementsFor(setup, hFine).length) hs.unshift(2 * hFine);
+  if (levelCount > 1 && elementCount(setup, 2 * hFine) < 0.8 * elementCount(setup, hFine)) hs.unshift(2 * hFine);
   const levels: Level[] = [];
   for (let l = 0; l < hs.length; l++) {
     const level = solveLevel(setup, scene, hs[l], eps, options, timings, l === hs.length - 1 ? '' : 'Coarse');
@@ -636,14 +790,15 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
 
   // A reused factorization with new drives or free charges: slices and thin-element fields by
   // superposition of stored values.
-  const freeSignature = JSON.stringify([scene.charges, scene.medium.permittivity]);
+  const freeSignature = JSON.stringify([scene.charges, scene.medium.permittivity], (key, value) => (key === 'range' || key === 'nameRange' ? undefined : value));
   const used = lastUse2d.get(fine.factored);
-  const superpose = (used !== undefined && used !== JSON.stringify([drives, freeSignature])) || stored2d.has(fine.factored) || options.superpose === true;
+  const superpose = (used !== undefined && used !== JSON.stringify([drives, freeSignature])) || stores2d.has(fine.factored) || options.superpose === true;
   lastUse2d.set(fine.factored, JSON.stringify([drives, freeSignature]));
   let t = performance.now();
-  const stored = superpose ? { freeSignature, eps } : null;
+  const stored: StoredUse | null = superpose ? { build: mayBuild(options), freeKey: freeSignature, eps, isCancelled: options.isCancelled } : null;
   const peaks = surfacePeaks(setup, fine, dFine, k, stored);
   const peaksCoarse = coarse && dCoarse ? surfacePeaks(setup, coarse, dCoarse, k, stored) : null;
+  if (!peaks || (coarse && !peaksCoarse)) return null;
   timings.surfaceField = performance.now() - t;
   const nFine = fine.elements.length;
   const nCoarse = coarse?.elements.length ?? 0;
@@ -668,7 +823,7 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
   });
 
   // Energy W = ½ΣQ_k·V_k + ½Σ_f q_f·φ_f, φ_f the potential at free charge f without its own direct term.
-  const far = farRules(fine.elements);
+  const far = farOf(fine.elements);
   const acc = new Float64Array(3);
   let energy = 0;
   for (let i = 0; i < k; i++) energy += 0.5 * dFine.charges[i] * dFine.potentials[i];
@@ -684,27 +839,64 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
 
   // Behind the ground plane (the side away from the scene) the grounded plane screens everything:
   // 0 V and no field there, as in 3d (the image values would be fictitious).
-  const behind = behindGround(scene, setup.mirror);
+  const side = groundSide(scene, setup.mirror);
+  const behind = behindGround(setup.mirror, side);
+  // What decides which cells lie inside an electrode (the factorization's key holds the outlines only).
+  const shapes = JSON.stringify(scene.electrodes.map((e) => e.shape));
   t = performance.now();
-  const probes: ProbeResult[] = scene.probes.map((p) => {
-    const points: Vec2[] =
-      p.kind === 'point'
-        ? [p.at]
-        : Array.from({ length: Math.max(2, p.samples) }, (_, s, all = Math.max(2, p.samples)) => {
-            const f = s / (all - 1);
-            return [p.from[0] + f * (p.to[0] - p.from[0]), p.from[1] + f * (p.to[1] - p.from[1])] as Vec2;
-          });
-    return {
-      name: p.name,
-      points: points.map((at) => {
-        const inside = insideElectrode(scene, at);
-        if (inside >= 0) return { at: [...at], potential: dFine.potentials[inside], field: [0, 0], fieldMagnitude: 0 };
-        if (behind(at[0], at[1])) return { at: [...at], potential: 0, field: [0, 0], fieldMagnitude: 0 };
-        evaluate(setup, fine.elements, far, dFine, at[0], at[1], acc);
-        return { at: [...at], potential: acc[0], field: [acc[1], acc[2]], fieldMagnitude: Math.hypot(acc[1], acc[2]) };
-      }),
-    };
-  });
+  const probeLists = scene.probes.map((p): Vec2[] =>
+    p.kind === 'point'
+      ? [p.at]
+      : Array.from({ length: Math.max(2, p.samples) }, (_, s, all = Math.max(2, p.samples)) => {
+          const f = s / (all - 1);
+          return [p.from[0] + f * (p.to[0] - p.from[0]), p.from[1] + f * (p.to[1] - p.from[1])] as Vec2;
+        }),
+  );
+  // Points inside an electrode take its potential; behind the ground plane 0 V; the rest are evaluated.
+  const fixedAt = probeLists.map((points) => points.map((at) => {
+    const inside = insideElectrode(scene, at);
+    return inside >= 0 ? inside : behind(at[0], at[1]) ? -2 : -1;
+  }));
+  const open = probeLists.flatMap((points, i) => points.filter((_, m) => fixedAt[i][m] === -1));
+  const probeSet: PointSet = {
+    chunks: [Int32Array.from(open, (_, m) => m)],
+    points: open.length,
+    width: 3,
+    evaluate(taus, withFree) {
+      const outs = taus.map(() => new Float64Array(3 * open.length));
+      const values = new Float64Array(3 * taus.length);
+      open.forEach((at, m) => {
+        const [x, y, sign] = setup.toSolver(at[0], at[1]);
+        fieldsAt(setup, fine.elements, far, taus, withFree, x, y, values);
+        outs.forEach((out, b) => {
+          out[3 * m] = values[3 * b];
+          out[3 * m + 1] = sign * values[3 * b + 1];
+          out[3 * m + 2] = values[3 * b + 2];
+        });
+      });
+      return outs;
+    },
+  };
+  let probeValues: Float64Array | null = null;
+  if (open.length > 0) {
+    const key = JSON.stringify(['probes', open]);
+    const store = stored ? storeOf(fine.factored, key, probeSet, k + 1, stored.build) : null;
+    if (store && stored?.build && !buildStored(store, probeSet, fine, k, freeSignature, options.isCancelled)) return null;
+    probeValues = drivenValues(stored ? store : null, probeSet, stored ? weightsOf(dFine, eps, setup.scale) : [], freeSignature, dFine.tau, setup.infinityUnknown ? dFine.infinity : 0);
+    if (!probeValues) return null;
+  }
+  let nextOpen = 0;
+  const probes: ProbeResult[] = scene.probes.map((p, i) => ({
+    name: p.name,
+    points: probeLists[i].map((at, m) => {
+      const fixed = fixedAt[i][m];
+      if (fixed >= 0) return { at: [...at], potential: dFine.potentials[fixed], field: [0, 0], fieldMagnitude: 0 };
+      if (fixed === -2) return { at: [...at], potential: 0, field: [0, 0], fieldMagnitude: 0 };
+      const o = 3 * nextOpen++;
+      const [phi, eu, ev] = [probeValues![o], probeValues![o + 1], probeValues![o + 2]];
+      return { at: [...at], potential: phi, field: [eu, ev], fieldMagnitude: Math.hypot(eu, ev) };
+    }),
+  }));
   timings.probes = performance.now() - t;
 
   t = performance.now();
@@ -726,6 +918,7 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
     for (let j = 0; j < k; j++) asym = Math.max(asym, Math.abs(fine.C[i][j] - fine.C[j][i]));
   }
   timings.total = performance.now() - t0;
+  if (options.warm) options.warm.complete = true;
   return {
     format: 'voltscape-result/1',
     space: setup.space,
@@ -746,50 +939,11 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
   };
 
   /**
-   * A slice's stored values per solution (superposition, as engine/superpose.ts for 3d): the grid is
-   * linear in the densities, so with G_b the values of unit solution b (electrode b at 1 V; then the
-   * raw net-charge solution) and G_free those of the free charges (their induced densities and their
-   * direct field), φ = φ_∞ + Σ_b w_b·G_b + G_free. Kept per cached factorization, slice and grid.
+   * (φ, E_u, E_v) at the masked cells of a grid (3 per cell, scene coordinates, into outs): the
+   * elements' densities taus by target-side interpolation (grid2d.ts), the free charges summed
+   * directly where flagged in withFree.
    */
-  function sliceBasis2d(level: Level, s: Scene2d['slices'][number], grid: Grid2d, mask: Uint8Array, outside: number[]) {
-    let bySlice = stored2d.get(level.factored);
-    if (!bySlice) stored2d.set(level.factored, (bySlice = new Map()));
-    const key = JSON.stringify([s.plane, s.at, s.from, s.to, grid.nu, grid.nv]);
-    let basis = bySlice.get(key);
-    if (basis && (basis.outside.length !== outside.length || basis.outside.some((c, i) => c !== outside[i]))) basis = undefined;
-    const n = level.elements.length;
-    /** The grid values at the outside cells of each density (free charges with the flagged ones), in one pass. */
-    const valuesOf = (taus: Float64Array[], withFree: boolean[]) =>
-      gridValues(level.elements, taus, withFree, 0, grid, mask).map((all) => {
-        const out = new Float64Array(3 * outside.length);
-        outside.forEach((idx, m) => out.set(all.subarray(3 * idx, 3 * idx + 3), 3 * m));
-        return out;
-      });
-    const freeStale = basis?.free?.key !== freeSignature;
-    if (!basis) {
-      if (options.isCancelled?.()) return null;
-      const f = level.factored;
-      const taus = f.solved.slice(0, k).map((x) => x.subarray(0, n));
-      const net = f.solved.length > k;
-      if (net) taus.push(f.solved[k].subarray(0, n));
-      taus.push(level.units[k]);
-      const values = valuesOf(taus, taus.map((_, b) => b === taus.length - 1));
-      const vectors: (Float64Array | null)[] = values.slice(0, k);
-      vectors.push(net ? values[k] : null);
-      basis = { outside: [...outside], vectors, free: { key: freeSignature, values: values[values.length - 1] } };
-      bySlice.set(key, basis);
-      while (bySlice.size > 8) bySlice.delete(bySlice.keys().next().value as string);
-    } else if (freeStale) basis.free = { key: freeSignature, values: valuesOf([level.units[k]], [true])[0] };
-    return basis;
-  }
-
-  /**
-   * (φ, E_u, E_v) at the masked cells of a grid (3 per cell, scene coordinates): the elements'
-   * densities tau by target-side interpolation (grid2d.ts), the free charges and the potential at
-   * infinity summed directly.
-   */
-  function gridValues(elements: Element2d[], taus: Float64Array[], withFree: boolean[], infinity: number, grid: Grid2d, mask: Uint8Array): Float64Array[] {
-    const outs = taus.map(() => new Float64Array(3 * grid.nu * grid.nv));
+  function gridValues(elements: Element2d[], taus: Float64Array[], withFree: boolean[], grid: Grid2d, mask: Uint8Array, outs: Float64Array[]): void {
     const acc = new Float64Array(3);
     const fold = setup.space === 'axisymmetric';
     for (let idx = 0; idx < mask.length; idx++) {
@@ -798,91 +952,123 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
       const y = grid.v0 + (Math.floor(idx / grid.nu) + 0.5) * grid.dv;
       // As setup.toSolver: axisymmetric cells at u < 0 see the half-plane mirrored.
       const x = fold ? Math.abs(u) : u;
-      acc[0] = infinity;
-      acc[1] = acc[2] = 0;
+      acc[0] = acc[1] = acc[2] = 0;
       for (const f of setup.free) f.add(x, y, true, acc, false);
       outs.forEach((out, b) => {
-        if (!withFree[b]) {
-          out[3 * idx] = infinity;
-          return;
-        }
-        out[3 * idx] = acc[0];
-        out[3 * idx + 1] = fold && u < 0 ? -acc[1] : acc[1];
-        out[3 * idx + 2] = acc[2];
+        const free = withFree[b];
+        out[3 * idx] = free ? acc[0] : 0;
+        out[3 * idx + 1] = free ? (fold && u < 0 ? -acc[1] : acc[1]) : 0;
+        out[3 * idx + 2] = free ? acc[2] : 0;
       });
     }
     const accuracy = options.level === 'coarse' ? GRID_COARSE : GRID_FULL;
     gridEvaluate({ elements, taus, kernel: setup.gridKernel ?? setup.kernel, line: setup.line, mirror: setup.mirror, fold, logScale: setup.space === 'planar' ? setup.scale : undefined }, grid, mask, outs, accuracy);
-    return outs;
+  }
+
+  /** A slice's cells (kept per factorization: they depend on the geometry alone); null when cancelled. */
+  function sliceLayout(level: Level, s: Scene2d['slices'][number]): SliceLayout | null {
+    const { nu, nv, du, dv, reduced } = sliceDimensions(s, options.maxGridCells ?? 250000);
+    const u0 = Math.min(s.from[0], s.to[0]);
+    const v0 = Math.min(s.from[1], s.to[1]);
+    const key = JSON.stringify([s.plane, s.at, s.from, s.to, nu, nv, shapes, side]);
+    let byKey = layouts2d.get(level.factored);
+    const found = byKey?.get(key);
+    if (found) return found;
+    const size = nu * nv;
+    const inside = new Int16Array(size).fill(-1);
+    const mask = new Uint8Array(size);
+    const point = [0, 0];
+    let count = 0;
+    for (let j = 0; j < nv; j++) {
+      if ((j & 7) === 0 && options.isCancelled?.()) return null;
+      for (let i = 0; i < nu; i++) {
+        const idx = j * nu + i;
+        point[0] = u0 + (i + 0.5) * du;
+        point[1] = v0 + (j + 0.5) * dv;
+        const e = insideElectrode(scene, point);
+        inside[idx] = e;
+        if (e < 0 && !behind(point[0], point[1])) {
+          mask[idx] = 1;
+          count++;
+        }
+      }
+    }
+    // Each cell evaluated gets its place in the point set; chunks follow gridEvaluate's blocks.
+    const grid: Grid2d = { nu, nv, u0, v0, du, dv };
+    const place = new Int32Array(size).fill(-1);
+    const outside = new Int32Array(count);
+    const chunks: Int32Array[] = [];
+    let m = 0;
+    for (const [i0, i1, j0, j1] of gridBlocks(grid, SLICE_CHUNKS)) {
+      const start = m;
+      for (let j = j0; j < j1; j++) {
+        for (let i = i0; i < i1; i++) {
+          const idx = j * nu + i;
+          if (!mask[idx]) continue;
+          place[idx] = m;
+          outside[m++] = idx;
+        }
+      }
+      if (m > start) chunks.push(Int32Array.from({ length: m - start }, (_, q) => start + q));
+    }
+    const layout: SliceLayout = { grid, reduced, inside, mask, outside, chunks };
+    if (!byKey) layouts2d.set(level.factored, (byKey = new Map()));
+    byKey.set(key, layout);
+    while (byKey.size > STORED_SETS) byKey.delete(byKey.keys().next().value as string);
+    return layout;
   }
 
   function sliceGrid(scene: Scene2d, setup: Space2d, level: Level, d: Driven, s: Scene2d['slices'][number]): SliceResult | null {
-    const u0 = Math.min(s.from[0], s.to[0]);
-    const v0 = Math.min(s.from[1], s.to[1]);
-    const w = Math.abs(s.to[0] - s.from[0]);
-    const hgt = Math.abs(s.to[1] - s.from[1]);
+    const layout = sliceLayout(level, s);
+    if (!layout) return null;
+    const { grid, inside, outside, chunks } = layout;
+    const { nu, nv, u0, v0, du, dv } = grid;
     const maxCells = options.maxGridCells ?? 250000;
-    const { nu, nv, du, dv, reduced } = sliceDimensions(s, maxCells);
-    if (reduced) diagnostics.push(diagnostic('VS408', s.range, `Slice grid reduced to ${nu} × ${nv} cells to stay within the grid-cell limit (${maxCells}).`));
+    if (layout.reduced) diagnostics.push(diagnostic('VS408', s.range, `Slice grid reduced to ${nu} × ${nv} cells to stay within the grid-cell limit (${maxCells}).`));
     const size = nu * nv;
+    // Behind the ground plane 0 V and no field; inside an electrode its potential.
     const potential = new Float64Array(size);
     const fieldU = new Float32Array(size);
     const fieldV = new Float32Array(size);
     const fieldMagnitude = new Float32Array(size);
-    const inside = new Int16Array(size);
-    const outside: number[] = [];
-    const point = [0, 0];
-    for (let j = 0; j < nv; j++) {
-      if ((j & 7) === 0 && options.isCancelled?.()) return null;
-      for (let i = 0; i < nu; i++) {
-        const u = u0 + (i + 0.5) * du;
-        const v = v0 + (j + 0.5) * dv;
-        const idx = j * nu + i;
-        point[0] = u;
-        point[1] = v;
-        const e = insideElectrode(scene, point);
-        inside[idx] = e;
-        if (e >= 0) {
-          potential[idx] = d.potentials[e];
-          fieldU[idx] = fieldV[idx] = fieldMagnitude[idx] = NaN;
-          continue;
-        }
-        if (behind(u, v)) {
-          potential[idx] = fieldU[idx] = fieldV[idx] = fieldMagnitude[idx] = 0;
-          continue;
-        }
-        outside.push(idx);
-      }
+    for (let idx = 0; idx < size; idx++) {
+      const e = inside[idx];
+      if (e < 0) continue;
+      potential[idx] = d.potentials[e];
+      fieldU[idx] = fieldV[idx] = fieldMagnitude[idx] = NaN;
     }
-    const put = (idx: number, phi: number, eu: number, ev: number) => {
-      potential[idx] = phi;
+    const set: PointSet = {
+      chunks,
+      points: outside.length,
+      width: 3,
+      evaluate(taus, withFree, ids) {
+        const mask = new Uint8Array(size);
+        let count = 0;
+        for (const c of ids) for (const m of chunks[c]) (mask[outside[m]] = 1), count++;
+        const outs = taus.map(() => new Float64Array(3 * size));
+        gridValues(level.elements, taus, withFree, grid, mask, outs);
+        if (options.isCancelled?.()) return null;
+        // Compact, in the order of the chunks' points.
+        return outs.map((all) => {
+          const out = new Float64Array(3 * count);
+          let o = 0;
+          for (const c of ids) for (const m of chunks[c]) out.set(all.subarray(3 * outside[m], 3 * outside[m] + 3), 3 * o++);
+          return out;
+        });
+      },
+    };
+    const key = JSON.stringify(['slice', s.plane, s.at, s.from, s.to, nu, nv, outside.length]);
+    const store = stored ? storeOf(level.factored, key, set, k + 1, stored.build) : null;
+    if (store && stored?.build && !buildStored(store, set, level, k, freeSignature, options.isCancelled)) return null;
+    const values = drivenValues(stored ? store : null, set, stored ? weightsOf(d, eps, setup.scale) : [], freeSignature, d.tau, setup.infinityUnknown ? d.infinity : 0);
+    if (!values) return null;
+    for (let m = 0; m < outside.length; m++) {
+      const idx = outside[m];
+      const eu = values[3 * m + 1], ev = values[3 * m + 2];
+      potential[idx] = values[3 * m];
       fieldU[idx] = eu;
       fieldV[idx] = ev;
       fieldMagnitude[idx] = Math.hypot(eu, ev);
-    };
-    const grid: Grid2d = { nu, nv, u0, v0, du, dv };
-    const mask = new Uint8Array(size);
-    for (const idx of outside) mask[idx] = 1;
-    if (superpose) {
-      // Σ_e V_e·G_e + α·G_net/(ε·scale) + G_free + the potential at infinity (see sliceBasis2d).
-      const basis = sliceBasis2d(level, s, grid, mask, outside);
-      if (!basis) return null;
-      const weights = [...d.potentials, d.alpha / (eps * setup.scale)];
-      for (let m = 0; m < outside.length; m++) {
-        let phi = d.infinity, eu = 0, ev = 0;
-        basis.vectors.forEach((g, b) => {
-          const w = weights[b];
-          if (!g || w === 0) return;
-          phi += w * g[3 * m];
-          eu += w * g[3 * m + 1];
-          ev += w * g[3 * m + 2];
-        });
-        const g = basis.free!.values;
-        put(outside[m], phi + g[3 * m], eu + g[3 * m + 1], ev + g[3 * m + 2]);
-      }
-    } else {
-      const [values] = gridValues(level.elements, [d.tau], [true], setup.infinityUnknown ? d.infinity : 0, grid, mask);
-      for (const idx of outside) put(idx, values[3 * idx], values[3 * idx + 1], values[3 * idx + 2]);
     }
     const outlines: Outline[] = [];
     for (let e = 0; e < k; e++) {
@@ -894,8 +1080,9 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
     const groundLines: number[][] = [];
     if (setup.mirror) {
       const c = setup.mirror.at;
-      groundLines.push(setup.mirror.axis === 1 ? [u0, c, u0 + w, c] : [c, v0, c, v0 + hgt]);
+      groundLines.push(setup.mirror.axis === 1 ? [u0, c, u0 + Math.abs(s.to[0] - s.from[0]), c] : [c, v0, c, v0 + Math.abs(s.to[1] - s.from[1])]);
     }
-    return { plane: s.plane, at: s.at, nu, nv, u0, v0, du, dv, potential, fieldU, fieldV, fieldMagnitude, inside, outlines, groundLines };
+    // The layout is kept: the result gets its own copy of the electrode map (results move to other threads).
+    return { plane: s.plane, at: s.at, nu, nv, u0, v0, du, dv, potential, fieldU, fieldV, fieldMagnitude, inside: Int16Array.from(inside), outlines, groundLines };
   }
 }
