@@ -184,6 +184,16 @@ function buildCoarse(H: HMatrix, start: Int32Array, size: Int32Array): { coarse:
   const AR = at >= 0 ? arenaFloat32(H.arena!, at, N * G) : new Float32Array(new SharedArrayBuffer(4 * N * G));
   forEachBlock(H, (r0, m, c0, n, rank, values, off) => {
     if (rank < 0) {
+      // Columns inside one coarse cluster (the usual case: a leaf within a larger cluster): row sums.
+      const J = owner[c0];
+      if (owner[c0 + n - 1] === J) {
+        for (let a = 0; a < m; a++) {
+          let t = 0;
+          for (let c = 0, d = off + a * n; c < n; c++) t += values[d + c];
+          AR[(r0 + a) * G + J] += t;
+        }
+        return;
+      }
       for (let a = 0; a < m; a++) {
         const o = (r0 + a) * G, d = off + a * n;
         for (let c = 0; c < n; c++) AR[o + owner[c0 + c]] += values[d + c];
