@@ -481,7 +481,8 @@ export function warmStoredGrids(cache: EngineCache, isCancelled: () => boolean, 
   const work = used.flatMap(({ level, store }) =>
     [...store.slices.values(), ...store.probes.values(), ...(store.thin ? [store.thin] : [])]
       .filter((s) => s.use?.at === store.uses)
-      .map((s) => ({ s, level, left: workLeft(s, level, s.use!.ev) })),
+      // Work in point-panel pairs, so that the coarse level's grids (what a drive edit's first picture needs) come first.
+      .map((s) => ({ s, level, left: workLeft(s, level, s.use!.ev) * level.sys.n })),
   );
   work.sort((a, b) => a.left - b.left);
   for (const { s, level } of work) {

@@ -98,8 +98,19 @@ export function assembleDense(sys: Bem3dSystem, isCancelled?: () => boolean, reu
   const kept = from ? Int32Array.from({ length: n }, (_, j) => j).filter((j) => from[j] >= 0) : new Int32Array(0);
   const oldThin = new Int32Array(reuse?.n ?? 0).fill(-1);
   reuse?.thinRows?.panels.forEach((i, t) => (oldThin[i] = t));
+  // Kept columns in runs that are consecutive in both numberings (an electrode's panels are), so a
+  // row is copied a run at a time (TypedArray.set: a block copy, some 10× faster than one by one).
+  const runs: number[] = []; // [new start, old start, length]*
+  for (let k = 0; k < kept.length; k++) {
+    const j = kept[k], r = runs.length - 3;
+    if (r >= 0 && runs[r] + runs[r + 2] === j && runs[r + 1] + runs[r + 2] === from![j]) runs[r + 2]++;
+    else runs.push(j, from![j], 1);
+  }
   const copyRow = (target: Float64Array, at: number, source: Float64Array, sourceAt: number) => {
-    for (let k = 0; k < kept.length; k++) target[at + kept[k]] = source[sourceAt + from![kept[k]]];
+    for (let r = 0; r < runs.length; r += 3) {
+      const o = sourceAt + runs[r + 1];
+      target.set(source.subarray(o, o + runs[r + 2]), at + runs[r]);
+    }
   };
 
   // Thin rows: kept ones whose earlier matrix had them copy their kept columns and compute the new
