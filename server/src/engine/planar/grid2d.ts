@@ -49,21 +49,35 @@ export interface GridSources {
   logScale?: number;
 }
 
-/** How the grid is summed: interpolation points per block side and the separation for interpolation. */
+/** How the grid is summed: interpolation points per block side and the separations. */
 export interface GridAccuracy {
   /** Interpolation points per block side (any kernel). */
   order: number;
   /** Powers kept in the ln kernel's expansions. */
   terms: number;
+  /** Distance from a block, in its half-diagonals, beyond which a source is interpolated. */
   separation: number;
+  /**
+   * The same for the ln kernel's expansions, whose error is about (1 + s)^−terms for separation s
+   * (see Expansion): they can take sources much nearer than interpolation can.
+   */
+  expansionSeparation: number;
 }
-/** About 1e-6 of the direct sum on the tests' scenes (the full picture). */
-export const GRID_FULL: GridAccuracy = { order: 8, terms: 24, separation: 2 };
-/** About 1e-4, far below a coarse mesh's own error (the live picture). */
-export const GRID_COARSE: GridAccuracy = { order: 6, terms: 14, separation: 1.5 };
+/**
+ * About 1e-6 of the direct sum on the tests' scenes (the full picture); the expansions at separation
+ * 1 err by about 2^−24 ≈ 6e-8 of the far part (measured 1.5e-7 of the largest field).
+ */
+export const GRID_FULL: GridAccuracy = { order: 8, terms: 24, separation: 2, expansionSeparation: 1 };
+/** About 1e-4, far below a coarse mesh's own error (the live picture; expansions 2^−14 ≈ 6e-5, measured 2.6e-5). */
+export const GRID_COARSE: GridAccuracy = { order: 6, terms: 14, separation: 1.5, expansionSeparation: 1 };
 
 /** Blocks of at most this many cells are leaves (summed cell by cell). */
 const LEAF_CELLS = 16;
+/**
+ * The same with expansions: a block's re-centred series costs little (terms² per density), so
+ * smaller leaves pay off, leaving fewer elements near enough to be summed cell by cell.
+ */
+const EXPANSION_LEAF_CELLS = 8;
 
 /**
  * Gauss rules by distance d from an element's midpoint, in squared element lengths: 3 points beyond
@@ -456,7 +470,9 @@ export function gridEvaluate(src: GridSources, grid: Grid2d, mask: Uint8Array, o
     src.logScale !== undefined
       ? (expansionField(accuracy.terms, src.logScale, elements, taus, rule3, rule5, charged, cx, cy, mirror, stride) as FarField<Nodes | Expansion>)
       : (interpolationField(accuracy.order, W, sumAt, acc) as FarField<Nodes | Expansion>);
-  const sep2 = accuracy.separation * accuracy.separation;
+  const separation = src.logScale !== undefined ? accuracy.expansionSeparation : accuracy.separation;
+  const sep2 = separation * separation;
+  const leafCells = src.logScale !== undefined ? EXPANSION_LEAF_CELLS : LEAF_CELLS;
   const clusterSep2 = CLUSTER_SEPARATION * CLUSTER_SEPARATION;
 
   /**
@@ -467,7 +483,7 @@ export function gridEvaluate(src: GridSources, grid: Grid2d, mask: Uint8Array, o
     if (cellsIn(i0, i1, j0, j1) === 0) return;
     const ua = u0 + (i0 + 0.5) * du, ub = u0 + (i1 - 0.5) * du;
     const va = v0 + (j0 + 0.5) * dv, vb = v0 + (j1 - 0.5) * dv;
-    if ((i1 - i0) * (j1 - j0) <= LEAF_CELLS) {
+    if ((i1 - i0) * (j1 - j0) <= leafCells) {
       // Leaf: what was gathered above plus every remaining element, cell by cell.
       const units: number[] = [];
       for (const item of list) expand(item, units);
@@ -614,7 +630,7 @@ function interpolationField(p: number, width: number, sumAt: (list: number[], co
  * 1987, lemma 2.4):
  *   w(z) = −(q/2π)·ln(|z_s − z_B|/ℓ) + Σ_{k≥1} (q/2π)·(z − z_B)^k / (k·(z_s − z_B)^k)
  * (up to an imaginary constant), truncated after `terms` powers: the error is about ρ^terms with
- * ρ = |z − z_B|/|z_s − z_B| ≤ 1/(1 + separation). A child takes its parent's series re-centred
+ * ρ = |z − z_B|/|z_s − z_B| ≤ 1/(1 + expansionSeparation), times about `terms` for the field. A child takes its parent's series re-centred
  * (Taylor shift, exact).
  */
 interface Expansion {

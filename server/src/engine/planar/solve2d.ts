@@ -306,6 +306,14 @@ function drivenValues(stored: Stored | null, set: PointSet, weights: number[], f
   return out;
 }
 
+/**
+ * Most elements of the 'coarse' level: twice the scene's element size, enlarged further to fit this.
+ * The coarse picture is there to come first: its dense LU grows as N³, the matrix and the thin
+ * elements' fields as N², so a budget bounds it at any mesh size (about 30 ms of LU here).
+ * The full level and its convergence estimate are untouched.
+ */
+export const COARSE_ELEMENTS_2D = 320;
+
 /** Most factored levels kept in the cache (each holds an N² matrix factorization). */
 const CACHE_ENTRIES = 4;
 
@@ -773,6 +781,11 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
     hFine *= (1.05 * count) / setup.maxElements;
     count = elementCount(setup, hFine);
     coarsened = true;
+  }
+  // The coarse picture's budget (its cost must not grow with the scene; see COARSE_ELEMENTS_2D).
+  for (let count = elementCount(setup, hFine), i = 0; options.level === 'coarse' && count > COARSE_ELEMENTS_2D && i < 6; i++) {
+    hFine *= (1.05 * count) / COARSE_ELEMENTS_2D;
+    count = elementCount(setup, hFine);
   }
   const hs = [hFine];
   if (levelCount > 1 && elementCount(setup, 2 * hFine) < 0.8 * elementCount(setup, hFine)) hs.unshift(2 * hFine);
