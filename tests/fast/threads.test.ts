@@ -2,7 +2,8 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { build } from 'esbuild';
 import { watPlugin } from '../../scripts/wat.mjs';
 import { preparePanels } from '../../server/src/engine/kernels/triangle';
-import { buildPanelSolver } from '../../server/src/engine/fast/panel-solver';
+import { buildPanelSolver, parallelBuildWork } from '../../server/src/engine/fast/panel-solver';
+import { buildBlockJacobi } from '../../server/src/engine/fast/block-jacobi';
 import { FieldEvaluator } from '../../server/src/engine/fast/field-evaluator';
 import { closeFastPool, fastThreads, setFastWorkerScript } from '../../server/src/engine/fast/pool';
 import { boxSurface, icosphere, joinMeshes } from './fixtures';
@@ -68,6 +69,21 @@ describe('worker threads give the same numbers as one thread', () => {
       }
       expect(Math.sqrt(e / n)).toBeLessThan(1e-9);
     }
+  });
+
+  it('builds the preconditioner (local blocks and the coarse level) on two threads exactly as on one', () => {
+    setFastWorkerScript({ code });
+    const S = buildPanelSolver(sys, { threads: 1 }, P)!;
+    // Blocks of 32 and a coarse level of many clusters: several row bands, blocks across them.
+    const one = buildBlockJacobi(S.H, 32, true);
+    const two = buildBlockJacobi(S.H, 32, true, parallelBuildWork(2));
+    expect(one.coarse!.G).toBeGreaterThan(4);
+    expect(two.coarse!.G).toBe(one.coarse!.G);
+    expect(Array.from(two.pivot)).toEqual(Array.from(one.pivot));
+    // Each row band is summed in the same block order on whichever thread: bit for bit.
+    expect(two.lu.every((v, i) => v === one.lu[i])).toBe(true);
+    expect(two.coarse!.AR.every((v, i) => v === one.coarse!.AR[i])).toBe(true);
+    expect(one.coarse!.AR.some((v) => v !== 0)).toBe(true);
   });
 
   it('evaluates a grid on two threads exactly as on one', () => {

@@ -23,7 +23,7 @@
 // computed in double, then rounded: M stays one fixed linear operator, a few 1e-8 from the double
 // one, which is all a preconditioner needs), and every row of the solves is a dot product of the
 // SIMD kernel (product-kernel.wat dot1).
-import { forEachBlock, type HMatrix } from './hmatrix';
+import type { BlockPack, HMatrix } from './hmatrix';
 import { arenaAlloc, arenaFloat32, arenaFloat64, kernelFor, type Arena, type ProductKernel } from './arena';
 
 /**
@@ -71,78 +71,147 @@ interface Coarse {
 }
 
 /**
- * Factors blocks in place: block k of `lu` (size[k]², from luOff[k]) by luFactor, its row swaps to
- * pivot[start[k] ..]. Here, or on several threads (fast/jobs.ts runFactor). False when it could not
- * finish (a thread failed): the blocks must then be gathered and factored again.
+ * What building the local level needs (plain arrays, the large ones shared, so that worker threads
+ * can build blocks too: fast/jobs.ts runFactor). Block k of `lu` (size[k]², from luOff[k]) is
+ * gathered from the stored blocks inside it (pairs pack, block at inside[2·insideStart[k]] ..
+ * inside[2·insideStart[k + 1]]) and factored by luFactor, its row swaps to pivot[start[k] ..].
  */
-export type BlockFactorRunner = (lu: Float64Array, luOff: Int32Array, size: Int32Array, start: Int32Array, pivot: Int32Array) => boolean;
+export interface LocalBuild {
+  packs: BlockPack[];
+  insideStart: Int32Array;
+  inside: Int32Array;
+  lu: Float64Array;
+  luOff: Int32Array;
+  size: Int32Array;
+  start: Int32Array;
+  pivot: Int32Array;
+}
 
-export const factorHere: BlockFactorRunner = (lu, luOff, size, start, pivot) => {
-  factorBlocks(lu, luOff, size, start, pivot, 0, size.length);
+/** Builds all blocks here or on several threads; false when it could not finish (a thread failed): the caller then builds them again here. */
+export type BlockFactorRunner = (b: LocalBuild) => boolean;
+
+export const factorHere: BlockFactorRunner = (b) => {
+  factorBlocks(b, 0, b.size.length);
   return true;
 };
 
-/** Blocks [k0, k1) of a BlockFactorRunner's work. */
-export function factorBlocks(lu: Float64Array, luOff: Int32Array, size: Int32Array, start: Int32Array, pivot: Int32Array, k0: number, k1: number): void {
-  for (let k = k0; k < k1; k++) pivot.set(luFactor(lu.subarray(luOff[k], luOff[k] + size[k] * size[k]), size[k]), start[k]);
+/** Blocks [k0, k1) of the local level: gathered (dense blocks copied, low-rank blocks expanded), then factored. */
+export function factorBlocks(b: LocalBuild, k0: number, k1: number): void {
+  for (let k = k0; k < k1; k++) {
+    const s = b.size[k], B = b.lu.subarray(b.luOff[k], b.luOff[k] + s * s);
+    B.fill(0);
+    for (let e = b.insideStart[k]; e < b.insideStart[k + 1]; e++) {
+      const p = b.packs[b.inside[2 * e]], h = 6 * b.inside[2 * e + 1], H = p.heads, values = p.values;
+      const r0 = H[h], m = H[h + 1], c0 = H[h + 2], n = H[h + 3], rank = H[h + 4], off = H[h + 5];
+      const ro = r0 - b.start[k], co = c0 - b.start[k];
+      if (rank < 0) {
+        for (let a = 0; a < m; a++) for (let c = 0; c < n; c++) B[(ro + a) * s + co + c] = values[off + a * n + c];
+        continue;
+      }
+      const vOff = off + rank * m;
+      for (let l = 0; l < rank; l++) {
+        for (let a = 0; a < m; a++) {
+          const u = values[off + l * m + a];
+          const o = (ro + a) * s + co;
+          for (let c = 0; c < n; c++) B[o + c] += u * values[vOff + l * n + c];
+        }
+      }
+    }
+    b.pivot.set(luFactor(B, s), b.start[k]);
+  }
+}
+
+/**
+ * What summing A·Rᵀ needs (shared, for worker threads: fast/jobs.ts runCoarse): rows are cut into
+ * bands (band t: rows bands[t] .. bands[t + 1]), each summed over every stored block that meets it,
+ * so that no two threads write the same rows.
+ */
+export interface CoarseBuild {
+  packs: BlockPack[];
+  AR: Float32Array;
+  owner: Int32Array;
+  G: number;
+  bands: Int32Array;
+}
+
+/** Sums all bands here or on several threads; false when a thread failed (the caller clears AR and sums here). */
+export type CoarseRunner = (c: CoarseBuild) => boolean;
+
+export const coarseHere: CoarseRunner = (c) => {
+  coarseBands(c, 0, c.bands.length - 1);
+  return true;
+};
+
+/** How the building work is spread over threads; each part defaults to the calling thread alone. */
+export interface BuildWork {
+  factor?: BlockFactorRunner;
+  coarse?: CoarseRunner;
 }
 
 /**
  * Chooses the largest clusters holding at most `blockSize` unknowns, gathers their diagonal blocks
- * from the H-matrix (dense blocks copied, low-rank blocks expanded) and factors them.
+ * from the H-matrix and factors them; then the coarse level.
  */
-export function buildBlockJacobi(H: HMatrix, blockSize: number, withCoarse = true, factor: BlockFactorRunner = factorHere): BlockJacobi {
+export function buildBlockJacobi(H: HMatrix, blockSize: number, withCoarse = true, work: BuildWork = {}): BlockJacobi {
   // Blocks in tree order; owner[p] = block holding tree position p.
   const { start, size } = clusters(H, blockSize);
   const owner = new Int32Array(H.size);
   for (let k = 0; k < start.length; k++) owner.fill(k, start[k], start[k] + size[k]);
-  const luOff = new Int32Array(start.length);
+  const luOff = new Int32Array(new SharedArrayBuffer(4 * start.length));
   let total = 0;
   for (let k = 0; k < start.length; k++) {
     luOff[k] = total;
     total += size[k] * size[k];
   }
-  const lu = new Float64Array(new SharedArrayBuffer(8 * total));
-  const blocks = Array.from(size, (s, k) => lu.subarray(luOff[k], luOff[k] + s * s));
-  const inside = (r0: number, m: number, c0: number, n: number): number => {
-    const k = owner[r0];
-    return owner[c0] === k && owner[r0 + m - 1] === k && owner[c0 + n - 1] === k ? k : -1;
-  };
-  const gather = () => forEachBlock(H, (r0, m, c0, n, rank, values, off) => {
-    const k = inside(r0, m, c0, n);
-    if (k < 0) return;
-    const s = size[k], B = blocks[k], ro = r0 - start[k], co = c0 - start[k];
-    if (rank < 0) {
-      for (let a = 0; a < m; a++) for (let c = 0; c < n; c++) B[(ro + a) * s + co + c] = values[off + a * n + c];
-      return;
-    }
-    const vOff = off + rank * m;
-    for (let l = 0; l < rank; l++) {
-      for (let a = 0; a < m; a++) {
-        const u = values[off + l * m + a];
-        const o = (ro + a) * s + co;
-        for (let c = 0; c < n; c++) B[o + c] += u * values[vOff + l * n + c];
-      }
+  // The stored blocks inside each block, grouped by block (counting sort).
+  const insideStart = new Int32Array(new SharedArrayBuffer(4 * (start.length + 1)));
+  const found: number[] = [];
+  H.packs.forEach((p, q) => {
+    for (let b = 0; b < p.count; b++) {
+      const h = 6 * b, r0 = p.heads[h], m = p.heads[h + 1], c0 = p.heads[h + 2], n = p.heads[h + 3];
+      const k = owner[r0];
+      if (owner[c0] !== k || owner[r0 + m - 1] !== k || owner[c0 + n - 1] !== k) continue;
+      found.push(k, q, b);
+      insideStart[k + 1]++;
     }
   });
-  gather();
-  const pivot = new Int32Array(new SharedArrayBuffer(4 * H.size));
-  if (!factor(lu, luOff, size, start, pivot)) {
-    lu.fill(0);
-    gather();
-    factorHere(lu, luOff, size, start, pivot);
+  for (let k = 0; k < start.length; k++) insideStart[k + 1] += insideStart[k];
+  const inside = new Int32Array(new SharedArrayBuffer(4 * Math.max(1, (2 * found.length) / 3)));
+  const next = insideStart.slice(0, start.length);
+  for (let e = 0; e < found.length; e += 3) {
+    const at = next[found[e]]++;
+    inside[2 * at] = found[e + 1];
+    inside[2 * at + 1] = found[e + 2];
   }
+  const local: LocalBuild = {
+    packs: H.packs,
+    insideStart,
+    inside,
+    lu: new Float64Array(new SharedArrayBuffer(8 * total)),
+    luOff,
+    size: shared(size),
+    start: shared(start),
+    pivot: new Int32Array(new SharedArrayBuffer(4 * H.size)),
+  };
+  if (!(work.factor ?? factorHere)(local)) factorHere(local);
+  const { lu, pivot } = local;
   let coarse: BlockSolveData['coarse'] = null;
   let coarseSolve: Coarse | null = null;
   let coarseInArena = true;
   if (withCoarse) {
     const cs = clusters(H, Math.max(blockSize, Math.ceil(H.size / MAX_COARSE)));
-    if (cs.start.length > 1) ({ coarse, coarseSolve, inArena: coarseInArena } = buildCoarse(H, cs.start, cs.size));
+    if (cs.start.length > 1) ({ coarse, coarseSolve, inArena: coarseInArena } = buildCoarse(H, cs.start, cs.size, start, work.coarse ?? coarseHere));
   }
   // The factors go to the arena (rounded to single precision) when A·Rᵀ is there too, or there is none.
   const lu32 = H.arena && coarseInArena ? arenaCopy32(H.arena, lu) : null;
   const arena = lu32 ? H.arena : null;
   return { start, size, lu: lu32 ?? lu, luOff, pivot, coarse, coarseSolve, arena, memory: arena ? arena.memory : null };
+}
+
+function shared(a: Int32Array): Int32Array {
+  const out = new Int32Array(new SharedArrayBuffer(a.byteLength));
+  out.set(a);
+  return out;
 }
 
 /** A single-precision copy in the arena; null past its 4 GiB. */
@@ -174,51 +243,85 @@ function clusters(H: HMatrix, most: number): { start: Int32Array; size: Int32Arr
   return { start: Int32Array.from(idx.map((k) => starts[k])), size: Int32Array.from(idx.map((k) => sizes[k])) };
 }
 
-/** A·Rᵀ from the stored blocks (a low-rank block U Vᵀ adds U·(R Vᵀ)ᵀ), then A_c = R·(A·Rᵀ). */
-function buildCoarse(H: HMatrix, start: Int32Array, size: Int32Array): { coarse: NonNullable<BlockSolveData['coarse']>; coarseSolve: Coarse; inArena: boolean } {
+/**
+ * A·Rᵀ from the stored blocks (a low-rank block U Vᵀ adds U·(R Vᵀ)ᵀ), in row bands (the local
+ * level's blocks, `bandStart`, grouped into about 64 bands), then A_c = R·(A·Rᵀ).
+ */
+function buildCoarse(
+  H: HMatrix,
+  start: Int32Array,
+  size: Int32Array,
+  bandStart: Int32Array,
+  runner: CoarseRunner,
+): { coarse: NonNullable<BlockSolveData['coarse']>; coarseSolve: Coarse; inArena: boolean } {
   const G = start.length, N = H.size;
   const owner = new Int32Array(new SharedArrayBuffer(4 * N));
   for (let k = 0; k < G; k++) owner.fill(k, start[k], start[k] + size[k]);
   // In the arena when there is one (fresh arena space is zero), so that the SIMD kernel reaches it.
   const at = H.arena ? arenaAlloc(H.arena, 4 * N * G) : -1;
   const AR = at >= 0 ? arenaFloat32(H.arena!, at, N * G) : new Float32Array(new SharedArrayBuffer(4 * N * G));
-  forEachBlock(H, (r0, m, c0, n, rank, values, off) => {
-    if (rank < 0) {
-      // Columns inside one coarse cluster (the usual case: a leaf within a larger cluster): row sums.
-      const J = owner[c0];
-      if (owner[c0 + n - 1] === J) {
-        for (let a = 0; a < m; a++) {
-          let t = 0;
-          for (let c = 0, d = off + a * n; c < n; c++) t += values[d + c];
-          AR[(r0 + a) * G + J] += t;
-        }
-        return;
-      }
-      for (let a = 0; a < m; a++) {
-        const o = (r0 + a) * G, d = off + a * n;
-        for (let c = 0; c < n; c++) AR[o + owner[c0 + c]] += values[d + c];
-      }
-      return;
-    }
-    // The block's columns span whole clusters J0..J1 (tree order): sum V's rows per cluster.
-    const J0 = owner[c0], nj = owner[c0 + n - 1] - J0 + 1, vOff = off + rank * m;
-    const vs = new Float64Array(rank * nj);
-    for (let l = 0; l < rank; l++) for (let c = 0; c < n; c++) vs[l * nj + owner[c0 + c] - J0] += values[vOff + l * n + c];
-    // AR[r0 + a][J0 + J] += Σ_l U_l[a]·vs_l[J], one factor column at a time (contiguous rows).
-    for (let l = 0; l < rank; l++) {
-      const ou = off + l * m, ov = l * nj;
-      for (let a = 0; a < m; a++) {
-        const u = values[ou + a], o = (r0 + a) * G + J0;
-        for (let J = 0; J < nj; J++) AR[o + J] += u * vs[ov + J];
-      }
-    }
-  });
+  const step = Math.max(1, Math.ceil(bandStart.length / 64));
+  const cuts: number[] = [];
+  for (let k = 0; k < bandStart.length; k += step) cuts.push(bandStart[k]);
+  cuts.push(N);
+  const build: CoarseBuild = { packs: H.packs, AR, owner, G, bands: shared(Int32Array.from(cuts)) };
+  if (!runner(build)) {
+    AR.fill(0);
+    coarseHere(build);
+  }
   const Ac = new Float64Array(G * G);
   for (let p = 0; p < N; p++) {
     const I = owner[p] * G, o = p * G;
     for (let J = 0; J < G; J++) Ac[I + J] += AR[o + J];
   }
   return { coarse: { G, AR, owner }, coarseSolve: { G, start, size, lu: Ac, pivot: luFactor(Ac, G) }, inArena: at >= 0 };
+}
+
+/** Bands [t0, t1) of a CoarseBuild: each band's rows of A·Rᵀ summed over the stored blocks that meet them. */
+export function coarseBands(c: CoarseBuild, t0: number, t1: number): void {
+  const { AR, owner, G } = c;
+  for (let t = t0; t < t1; t++) {
+    const B0 = c.bands[t], B1 = c.bands[t + 1];
+    for (const p of c.packs) {
+      const H = p.heads, values = p.values;
+      for (let b = 0; b < p.count; b++) {
+        const h = 6 * b, r0 = H[h], m = H[h + 1];
+        if (r0 >= B1 || r0 + m <= B0) continue;
+        const c0 = H[h + 2], n = H[h + 3], rank = H[h + 4], off = H[h + 5];
+        // The rows of this block inside the band: a0 .. a1.
+        const a0 = Math.max(0, B0 - r0), a1 = Math.min(m, B1 - r0);
+        if (rank < 0) {
+          // Columns inside one coarse cluster (the usual case: a leaf within a larger cluster): row sums.
+          const J = owner[c0];
+          if (owner[c0 + n - 1] === J) {
+            for (let a = a0; a < a1; a++) {
+              let s = 0;
+              for (let k = 0, d = off + a * n; k < n; k++) s += values[d + k];
+              AR[(r0 + a) * G + J] += s;
+            }
+          } else {
+            for (let a = a0; a < a1; a++) {
+              const o = (r0 + a) * G, d = off + a * n;
+              for (let k = 0; k < n; k++) AR[o + owner[c0 + k]] += values[d + k];
+            }
+          }
+          continue;
+        }
+        // The block's columns span whole clusters J0..J1 (tree order): sum V's rows per cluster.
+        const J0 = owner[c0], nj = owner[c0 + n - 1] - J0 + 1, vOff = off + rank * m;
+        const vs = new Float64Array(rank * nj);
+        for (let l = 0; l < rank; l++) for (let k = 0; k < n; k++) vs[l * nj + owner[c0 + k] - J0] += values[vOff + l * n + k];
+        // AR[r0 + a][J0 + J] += Σ_l U_l[a]·vs_l[J], one factor column at a time (contiguous rows).
+        for (let l = 0; l < rank; l++) {
+          const ou = off + l * m, ov = l * nj;
+          for (let a = a0; a < a1; a++) {
+            const u = values[ou + a], o = (r0 + a) * G + J0;
+            for (let J = 0; J < nj; J++) AR[o + J] += u * vs[ov + J];
+          }
+        }
+      }
+    }
+  }
 }
 
 /**

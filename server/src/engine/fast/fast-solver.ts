@@ -4,7 +4,7 @@
 // sides are in the caller's numbering; the tree order is internal.
 import type { EntrySource } from './aca';
 import { buildClusterTree } from './cluster-tree';
-import { applyBlockJacobi, applyBlockJacobiMany, blockSolveHere, buildBlockJacobi, factorHere, type BlockFactorRunner, type BlockJacobi, type BlockSolveRunner } from './block-jacobi';
+import { applyBlockJacobi, applyBlockJacobiMany, blockSolveHere, buildBlockJacobi, type BlockFactorRunner, type BlockJacobi, type BlockSolveRunner, type CoarseRunner } from './block-jacobi';
 import { gmresMany } from '../linear/gmres';
 import { fillBlock, hmatrixStorage, packProduct, partitionBlocks, PackWriter, type BlockPack, type BlockTask, type HMatrix } from './hmatrix';
 import { arenaAlloc, arenaFloat64, createArena, kernelFor, type Arena } from './arena';
@@ -115,6 +115,7 @@ export interface FastWork {
   product?: BlockProduct;
   blockSolve?: BlockSolveRunner;
   factor?: BlockFactorRunner;
+  coarse?: CoarseRunner;
 }
 
 /**
@@ -156,7 +157,7 @@ export function buildFastSolver(
   const H: HMatrix = { size: n, tree, packs, arena };
   timings.assemble = performance.now() - t0;
   t0 = performance.now();
-  const P: BlockJacobi = buildBlockJacobi(H, o.blockSize, o.coarseLevel, work.factor ?? factorHere);
+  const P: BlockJacobi = buildBlockJacobi(H, o.blockSize, o.coarseLevel, { factor: work.factor, coarse: work.coarse });
   timings.precondition = performance.now() - t0;
   const order = tree.order;
   const store = hmatrixStorage(H);

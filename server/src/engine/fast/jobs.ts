@@ -5,7 +5,7 @@ import { preparePanels, type Panels } from '../kernels/triangle';
 import { fillBlock, packProduct, PackWriter, type BlockPack, type BlockTask } from './hmatrix';
 import { panelEntrySource, type ImageMap } from './panel-entries';
 import { evaluateTree, type PanelTree } from './treecode';
-import { applyBlocks, factorBlocks, type BlockSolveData } from './block-jacobi';
+import { applyBlocks, coarseBands, factorBlocks, type BlockSolveData, type CoarseBuild, type LocalBuild } from './block-jacobi';
 import { fillDenseRows, fillThinRows } from '../bem3d/system';
 import { productMany } from '../linear/solver';
 import { kernelFor } from './arena';
@@ -201,14 +201,9 @@ export function runPrecondition(job: PreconditionJob): void {
   }
 }
 
-/** LU factorization of the preconditioner's blocks in place (block-jacobi.ts factorBlocks), shared between threads. */
-export interface FactorJob {
+/** The preconditioner's local blocks, gathered and factored in place (block-jacobi.ts factorBlocks), shared between threads. */
+export interface FactorJob extends LocalBuild {
   kind: 'factor';
-  lu: Float64Array;
-  luOff: Int32Array;
-  size: Int32Array;
-  start: Int32Array;
-  pivot: Int32Array;
   counter: Int32Array;
   chunk: number;
 }
@@ -218,7 +213,22 @@ export function runFactor(job: FactorJob): void {
   for (;;) {
     const k0 = Atomics.add(job.counter, 0, job.chunk);
     if (k0 >= count) return;
-    factorBlocks(job.lu, job.luOff, job.size, job.start, job.pivot, k0, Math.min(count, k0 + job.chunk));
+    factorBlocks(job, k0, Math.min(count, k0 + job.chunk));
+  }
+}
+
+/** The coarse level's A·Rᵀ summed in row bands (block-jacobi.ts coarseBands), shared between threads. */
+export interface CoarseJob extends CoarseBuild {
+  kind: 'coarse';
+  counter: Int32Array;
+}
+
+export function runCoarse(job: CoarseJob): void {
+  const count = job.bands.length - 1;
+  for (;;) {
+    const t = Atomics.add(job.counter, 0, 1);
+    if (t >= count) return;
+    coarseBands(job, t, t + 1);
   }
 }
 

@@ -4,8 +4,8 @@ import { preparePanels, type Panels } from '../kernels/triangle';
 import { buildFastSolver, productHere, productVectors, type BlockProduct, type FastSolver, type FastSolverOptions, type FastWork } from './fast-solver';
 import { type BlockPack, type BlockTask, type HMatrix } from './hmatrix';
 import type { Arena } from './arena';
-import { productItems, runAssemble, runFactor, runPrecondition, runProduct, type AssembleJob, type FactorJob, type PreconditionJob, type ProductJob } from './jobs';
-import { blockSolveHere, type BlockFactorRunner, type BlockSolveRunner } from './block-jacobi';
+import { productItems, runAssemble, runCoarse, runFactor, runPrecondition, runProduct, type AssembleJob, type CoarseJob, type FactorJob, type PreconditionJob, type ProductJob } from './jobs';
+import { blockSolveHere, type BlockFactorRunner, type BlockSolveRunner, type BuildWork, type CoarseRunner } from './block-jacobi';
 import { panelEntrySource, panelExtent, type ImageMap } from './panel-entries';
 import { fastThreads, runParallel, shared } from './pool';
 
@@ -40,18 +40,31 @@ export function buildPanelSolver(sys: PanelSystem, options: Partial<PanelSolverO
           fill: (tasks: BlockTask[], order: Int32Array, eps: number, arena: Arena | null) => fillParallel(sys, P, tasks, order, eps, arena, threads, isCancelled),
           product: parallelProduct(threads),
           blockSolve: parallelBlockSolve(threads),
-          factor: parallelFactor(threads),
+          ...parallelBuildWork(threads),
         }
       : {};
   return buildFastSolver(src, sys.points, panelExtent(P, sys.points), options, work, isCancelled);
 }
 
-/** The preconditioner's block factorizations shared between threads (jobs.ts runFactor). */
+/** The preconditioner's build on `threads` threads: its local blocks and its coarse level's A·Rᵀ. */
+export function parallelBuildWork(threads: number): BuildWork {
+  return { factor: parallelFactor(threads), coarse: parallelCoarse(threads) };
+}
+
+/** The preconditioner's local blocks gathered and factored on all threads (jobs.ts runFactor). */
 function parallelFactor(threads: number): BlockFactorRunner {
-  return (lu, luOff, size, start, pivot) => {
-    const job: FactorJob = { kind: 'factor', lu, luOff: shared(luOff), size: shared(size), start: shared(start), pivot, counter: new Int32Array(new SharedArrayBuffer(4)), chunk: 2 };
-    // A failed worker may leave a block half factored: say so, and the caller gathers and factors afresh.
+  return (b) => {
+    const job: FactorJob = { kind: 'factor', ...b, counter: new Int32Array(new SharedArrayBuffer(4)), chunk: 2 };
+    // A failed worker may leave a block half built: say so, and the caller builds them all again.
     return runParallel(threads, job as unknown as Record<string, unknown>, () => runFactor(job)) !== null;
+  };
+}
+
+/** The coarse level's A·Rᵀ summed on all threads, one row band at a time (jobs.ts runCoarse). */
+function parallelCoarse(threads: number): CoarseRunner {
+  return (c) => {
+    const job: CoarseJob = { kind: 'coarse', ...c, counter: new Int32Array(new SharedArrayBuffer(4)) };
+    return runParallel(threads, job as unknown as Record<string, unknown>, () => runCoarse(job)) !== null;
   };
 }
 

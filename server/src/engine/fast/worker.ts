@@ -2,7 +2,7 @@
 // Bundled on its own as fast-worker.js, or started from any bundle that calls startFastWorker()
 // when `isFastWorker()` is true.
 import { isMainThread, workerData, type MessagePort } from 'node:worker_threads';
-import { runAssemble, runDenseProduct, runEvaluate, runFactor, runPrecondition, runProduct, runRows, type AssembleJob, type DenseProductJob, type EvaluateJob, type FactorJob, type PreconditionJob, type ProductJob, type RowsJob } from './jobs';
+import { runAssemble, runCoarse, runDenseProduct, runEvaluate, runFactor, runPrecondition, runProduct, runRows, type AssembleJob, type CoarseJob, type DenseProductJob, type EvaluateJob, type FactorJob, type PreconditionJob, type ProductJob, type RowsJob } from './jobs';
 
 export function isFastWorker(): boolean {
   return !isMainThread && (workerData as { voltscapeFastWorker?: boolean } | null)?.voltscapeFastWorker === true;
@@ -15,7 +15,7 @@ export function startFastWorker(): void {
   if (started) return;
   started = true;
   const port = (workerData as { port: MessagePort }).port;
-  port.on('message', (msg: (AssembleJob | EvaluateJob | ProductJob | RowsJob | DenseProductJob | PreconditionJob | FactorJob) & { done: Int32Array }) => {
+  port.on('message', (msg: (AssembleJob | EvaluateJob | ProductJob | RowsJob | DenseProductJob | PreconditionJob | FactorJob | CoarseJob) & { done: Int32Array }) => {
     try {
       if (msg.kind === 'assemble') {
         // The packs live in shared memory: posting them shares, not copies.
@@ -34,6 +34,9 @@ export function startFastWorker(): void {
         port.postMessage({ ok: true });
       } else if (msg.kind === 'factor') {
         runFactor(msg);
+        port.postMessage({ ok: true });
+      } else if (msg.kind === 'coarse') {
+        runCoarse(msg);
         port.postMessage({ ok: true });
       } else {
         runEvaluate(msg);
