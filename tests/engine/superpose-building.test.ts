@@ -96,6 +96,20 @@ describe('building the stored grids of drive-only edits', () => {
     expect(storedProgress(level(cache)).directions).toBe(2);
   });
 
+  it("'stored-only': a repeated edit of one drive still goes along its kept grid after a warm-up completed part of the unit grids", () => {
+    const cache = createCache3d();
+    const live = (hv: string) => withGridBuilding('stored-only', () => solve(hv, cache))!;
+    live('10 kV');
+    live('12 kV');
+    expect(storedProgress(level(cache)).directions).toBe(1);
+    // Warm until over half the unit values are stored: hv's slice grid is complete, the floating pickup's
+    // (which moves with hv) is not, so the unit grids alone would split the change.
+    const total = storedProgress(level(cache)).total;
+    expect(warmStoredGrids({ store: new Map([['3d', cache]]) }, () => storedProgress(level(cache)).done > 0.6 * total)).toBe(false);
+    expectSame(live('15 kV'), solve('15 kV')!);
+    expect(storedProgress(level(cache)).directions).toBe(1);
+  });
+
   it('a build cut short keeps its values; the next build goes on from there; stored-only then sums them', () => {
     const cache = createCache3d();
     solve('10 kV', cache);

@@ -424,6 +424,19 @@ function addScaled(out: Float64Array, v: Float64Array, a: number): void {
   for (let i = 0; i < out.length; i++) out[i] += a * v[i];
 }
 
+/** out += the kept grid along `change` (a multiple of a kept direction ±d, cosine 1 to rounding); false when none is kept. */
+function alongKept(s: Stored, change: readonly number[], out: Float64Array): boolean {
+  const size = Math.hypot(...change);
+  if (size === 0) return true;
+  for (const g of s.directions) {
+    const cos = g.d.reduce((a, x, k) => a + x * change[k], 0) / size;
+    if (Math.abs(cos) < 1 - 1e-12) continue;
+    addScaled(out, g.values, size * Math.sign(cos));
+    return true;
+  }
+  return false;
+}
+
 /**
  * The last use's values moved to these drives (see Stored.directions); null when the free charges or
  * the medium changed since, or when that takes a new direction's grid and `evaluate` is false.
@@ -433,9 +446,12 @@ function fromLast(s: Stored, level: Level3d, images: Image[], potentials: readon
   if (!last || last.free !== level.free || last.permittivity !== permittivity) return null;
   const m = s.pts.length / 3;
   const out = Float64Array.from(last.values);
+  const change = potentials.map((v, k) => v - last.potentials[k]);
+  // A kept direction of the whole change first (a repeated edit of one drive), even where unit grids
+  // were completed since (the warm-up completes them one by one, which would split the change).
+  if (alongKept(s, change, out)) return out;
   // Complete unit grids take their own part of the change; the rest goes along a direction.
-  const rest = potentials.map((v, k) => {
-    const dv = v - last.potentials[k];
+  const rest = change.map((dv, k) => {
     if (dv === 0 || s.units[k].filled < m) return dv;
     addScaled(out, s.units[k].values, dv);
     return 0;
@@ -443,13 +459,7 @@ function fromLast(s: Stored, level: Level3d, images: Image[], potentials: readon
   const size = Math.hypot(...rest);
   if (size === 0) return out;
   const d = rest.map((x) => x / size);
-  // A kept direction ±d (cosine 1 to rounding).
-  for (const g of s.directions) {
-    const cos = g.d.reduce((a, x, k) => a + x * d[k], 0);
-    if (Math.abs(cos) < 1 - 1e-12) continue;
-    addScaled(out, g.values, size * Math.sign(cos));
-    return out;
-  }
+  if (alongKept(s, rest, out)) return out;
   if (!evaluate) return null;
   const x = new Float64Array(level.sys.n);
   d.forEach((c, k) => c !== 0 && addScaled(x, level.unit[k], c));
