@@ -75,17 +75,27 @@ describe('idle warm-up of 2d drive-only edits', () => {
     it(`${name}: a warm-up stopped partway, then a drive edit, then a finished warm-up all give the fresh picture`, () => {
       const cache = createEngineCache();
       const options = { level: 'full' as const, cache, maxGridCells: 1600 };
+      const fresh = (hv: string) => solveScene(scene(text(hv)), { level: 'full', maxGridCells: 1600 })!;
       // Nothing cached yet: the warm-up factors nothing and says so.
-      expect(warmStoredGrids2d(scene(text('10 kV')), cache, () => false, options)).toBe(false);
+      expect(warmStoredGrids2d(scene(text('10 kV')), createEngineCache(), () => false, options)).toBe(false);
       solveScene(scene(text('10 kV')), options);
       // Stopped after a few chunks: not complete.
       expect(warmStoredGrids2d(scene(text('10 kV')), cache, stopAfter(6), options)).toBe(false);
       // A live drive edit sums what is stored and evaluates the rest (it builds nothing: the cache is warmed in the background).
-      expectSame(solveScene(scene(text('14 kV')), options)!, solveScene(scene(text('14 kV')), { level: 'full', maxGridCells: 1600 })!);
+      expectSame(solveScene(scene(text('14 kV')), options)!, fresh('14 kV'));
       expect(warmStoredGrids2d(scene(text('14 kV')), cache, () => false, options)).toBe(true);
       const edited = solveScene(scene(text('7 kV')), options)!;
       expect(edited.stats.timings.slicesSuperposed).toBeDefined();
-      expectSame(edited, solveScene(scene(text('7 kV')), { level: 'full', maxGridCells: 1600 })!);
+      expectSame(edited, fresh('7 kV'));
+      // A new geometry in a warmed cache: its full solve keeps every unit solution's values as it goes,
+      // so the next drive edit sums them with no warm-up in between.
+      const moved = (hv: string) => text(hv).replace('mesh size 8 mm', 'mesh size 7 mm');
+      solveScene(scene(moved('7 kV')), options);
+      // Nothing left to build: the warm-up polls only twice (after the drives and after the slice), never per chunk.
+      expect(warmStoredGrids2d(scene(moved('7 kV')), cache, stopAfter(2), options)).toBe(true);
+      const next = solveScene(scene(moved('12 kV')), options)!;
+      expect(next.stats.timings.slicesSuperposed).toBeDefined();
+      expectSame(next, solveScene(scene(moved('12 kV')), { level: 'full', maxGridCells: 1600 })!);
     });
   }
 

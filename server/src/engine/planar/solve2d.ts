@@ -250,22 +250,27 @@ function scatter(values: Float64Array, into: Float64Array, set: PointSet, ids: n
 }
 
 /**
- * Builds the missing chunks of a store (every unit solution and the free charges in one pass per
- * chunk). False when cancelled between chunks; what was built is kept.
+ * Builds the missing chunks of a store: every unit solution and the free charges in one pass per
+ * chunk, or (onePass) per kind of chunk (those missing everything, those missing only the free
+ * values), which costs less but cannot stop partway. False when cancelled between passes; what was
+ * built is kept.
  */
-function buildStored(stored: Stored, set: PointSet, level: Level, k: number, freeKey: string, isCancelled?: () => boolean): boolean {
+function buildStored(stored: Stored, set: PointSet, level: Level, k: number, freeKey: string, isCancelled?: () => boolean, onePass = false): boolean {
   if (stored.free.key !== freeKey) stored.free = { key: freeKey, values: new Float64Array(set.width * set.points), done: new Uint8Array(set.chunks.length) };
   const units = unitDensities(level, k);
-  for (let c = 0; c < set.chunks.length; c++) {
-    if (stored.unitsDone[c] && stored.free.done[c]) continue;
+  const missing: number[] = [];
+  for (let c = 0; c < set.chunks.length; c++) if (!stored.unitsDone[c] || !stored.free.done[c]) missing.push(c);
+  const passes = onePass ? [missing.filter((c) => !stored.unitsDone[c]), missing.filter((c) => stored.unitsDone[c])] : missing.map((c) => [c]);
+  for (const ids of passes) {
+    if (ids.length === 0) continue;
     if (isCancelled?.()) return false;
-    const which = stored.unitsDone[c] ? [] : units.flatMap((u, b) => (u ? [b] : []));
+    const which = stored.unitsDone[ids[0]] ? [] : units.flatMap((u, b) => (u ? [b] : []));
     const taus = [...which.map((b) => units[b]!), level.units[k]];
-    const values = set.evaluate(taus, taus.map((_, b) => b === taus.length - 1), [c]);
+    const values = set.evaluate(taus, taus.map((_, b) => b === taus.length - 1), ids);
     if (!values) return false;
-    which.forEach((b, m) => scatter(values[m], stored.vectors[b]!, set, [c]));
-    scatter(values[values.length - 1], stored.free.values, set, [c]);
-    stored.unitsDone[c] = stored.free.done[c] = 1;
+    which.forEach((b, m) => scatter(values[m], stored.vectors[b]!, set, ids));
+    scatter(values[values.length - 1], stored.free.values, set, ids);
+    for (const c of ids) stored.unitsDone[c] = stored.free.done[c] = 1;
   }
   return true;
 }
@@ -650,6 +655,8 @@ function fieldsAt(
 /** How a solve uses stored values: whether to build missing ones, the free charges' signature, ε. */
 interface StoredUse {
   build: boolean;
+  /** Build in as few passes as possible (see buildStored). */
+  onePass: boolean;
   freeKey: string;
   eps: number;
   isCancelled?: () => boolean;
@@ -677,7 +684,7 @@ function surfacePeaks(setup: Space2d, level: Level, d: Driven, k: number, use: S
     const set = thinSet(setup, elements, farOf(elements));
     const units = k + 1;
     const stored = use ? storeOf(level.factored, 'thin', set, units, use.build) : null;
-    if (stored && use?.build && !buildStored(stored, set, level, k, use.freeKey, use.isCancelled)) return null;
+    if (stored && use?.build && !buildStored(stored, set, level, k, use.freeKey, use.isCancelled, use.onePass)) return null;
     summed = drivenValues(use ? stored : null, set, use ? weightsOf(d, use.eps, setup.scale) : [], use?.freeKey ?? '', d.tau, 0);
     if (!summed) return null;
   }
@@ -808,7 +815,11 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
   const superpose = (used !== undefined && used !== JSON.stringify([drives, freeSignature])) || stores2d.has(fine.factored) || options.superpose === true;
   lastUse2d.set(fine.factored, JSON.stringify([drives, freeSignature]));
   let t = performance.now();
-  const stored: StoredUse | null = superpose ? { build: mayBuild(options), freeKey: freeSignature, eps, isCancelled: options.isCancelled } : null;
+  // A background-warmed cache (the language server) evaluating a full level afresh: every unit
+  // solution goes through the same passes and is kept, so that the first drive-only edit sums them
+  // (about 3× one density's cost on the slices, a little more on thin elements and probes).
+  const keepUnits = !superpose && options.level !== 'coarse' && options.cache?.store.get(BACKGROUND_BUILD) === true;
+  const stored: StoredUse | null = superpose || keepUnits ? { build: mayBuild(options) || keepUnits, onePass: keepUnits, freeKey: freeSignature, eps, isCancelled: options.isCancelled } : null;
   const peaks = surfacePeaks(setup, fine, dFine, k, stored);
   const peaksCoarse = coarse && dCoarse ? surfacePeaks(setup, coarse, dCoarse, k, stored) : null;
   if (!peaks || (coarse && !peaksCoarse)) return null;
@@ -894,7 +905,7 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
   if (open.length > 0) {
     const key = JSON.stringify(['probes', open]);
     const store = stored ? storeOf(fine.factored, key, probeSet, k + 1, stored.build) : null;
-    if (store && stored?.build && !buildStored(store, probeSet, fine, k, freeSignature, options.isCancelled)) return null;
+    if (store && stored?.build && !buildStored(store, probeSet, fine, k, freeSignature, options.isCancelled, stored.onePass)) return null;
     probeValues = drivenValues(stored ? store : null, probeSet, stored ? weightsOf(dFine, eps, setup.scale) : [], freeSignature, dFine.tau, setup.infinityUnknown ? dFine.infinity : 0);
     if (!probeValues) return null;
   }
@@ -1072,7 +1083,7 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
     };
     const key = JSON.stringify(['slice', s.plane, s.at, s.from, s.to, nu, nv, outside.length]);
     const store = stored ? storeOf(level.factored, key, set, k + 1, stored.build) : null;
-    if (store && stored?.build && !buildStored(store, set, level, k, freeSignature, options.isCancelled)) return null;
+    if (store && stored?.build && !buildStored(store, set, level, k, freeSignature, options.isCancelled, stored.onePass)) return null;
     const values = drivenValues(stored ? store : null, set, stored ? weightsOf(d, eps, setup.scale) : [], freeSignature, d.tau, setup.infinityUnknown ? d.infinity : 0);
     if (!values) return null;
     for (let m = 0; m < outside.length; m++) {
