@@ -97,6 +97,28 @@ describe('free charges', () => {
     expect(rel(floating.electrodes[0].potential, (K * q) / d)).toBeLessThan(3e-3);
   });
 
+  it('a point charge beside a sphere at potential V stores W = ½QV + ½q·φ′(p), before and after a drive-only edit through the cache (images, Jackson sec. 2.2–2.3)', () => {
+    // Grounded sphere: image q′ = −q·a/d at a²/d; at potential V the sphere adds a uniform charge
+    // 4πε0·a·V, whose potential at the charge is V·a/d. So Q = 4πε0·a·V + q′ and
+    // φ′(p) = k·q′/(d − a²/d) + V·a/d (Jackson sec. 2.2–2.3, from memory for the uniform part).
+    const q = 1e-9, a = 0.5, d = 1.2;
+    const charges: Charge3d[] = [{ kind: 'point', name: 'q', at: [0, 0, d], value: q, range: R0 }];
+    const make = (V: number) => scene3d({ charges, electrodes: [electrode('s', sphere([0, 0, 0], a), { kind: 'potential', value: V })] });
+    const expected = (V: number) => {
+      const image = (-q * a) / d;
+      return 0.5 * (4 * Math.PI * EPSILON_0 * a * V + image) * V + 0.5 * q * ((K * image) / (d - (a * a) / d) + (V * a) / d);
+    };
+    const cache = createEngineCache();
+    const options = { level: 'coarse', cache } as const;
+    // The coarse mesh's error (flat panels, about −4/N on a sphere: methods.md) allowed.
+    expect(rel(solveScene(make(0), options)!.energy, expected(0))).toBeLessThan(1e-2);
+    const edited = solveScene(make(200), options)!;
+    expect(edited.stats.timings['fine.assembly']).toBeUndefined();
+    expect(rel(edited.energy, expected(200))).toBeLessThan(1e-2);
+    // The same as a fresh solve of the edited scene (superposition of the stored sample potentials).
+    expect(rel(edited.energy, solveScene(make(200), { level: 'coarse' })!.energy)).toBeLessThan(1e-9);
+  });
+
   it('an edit of the free charges alone reuses the unit solutions (no new assembly), and the induced charge scales with it (linearity)', () => {
     const cache = createEngineCache();
     const options = { level: 'coarse', cache } as const;

@@ -15,12 +15,13 @@ import { diagnostic } from '../../../grammar/diagnostics';
 import { formatQuantity } from '../format/quantity';
 import { potentialAndField, surfaceFields, type FieldState3d } from './bem3d/field';
 import { imageSet, reflect, type Image } from './bem3d/images';
-import { solveLevel, warmCandidate, type Level3d } from './bem3d/level';
-import { surfacePotentialAndGradient } from './bem3d/system';
+import { solveLevel, warmCandidate, type FreeSolution, type Level3d } from './bem3d/level';
+import { INV_4PI } from './bem3d/system';
 import { changeBetweenLevels, NO_ESTIMATE, richardson, TWO_LEVEL_SAFETY } from './convergence';
 import { applyDrives } from './drives';
 import { COARSE_GRID, evaluateProbes, evaluateSlices, FULL_GRID } from './evaluate';
 import { chargePotential, chargeSamples, chargeTotal } from './kernels/free-charges';
+import { panelPotential } from './kernels/triangle';
 import { chooseSolver, DENSE_MAX_UNKNOWNS, needsDenseMatrix, type SolverKind } from './linear/solver';
 import { meshForScene } from './mesh/index';
 import { postSolveChecks } from './post-solve';
@@ -215,19 +216,62 @@ export function solveAt(scene: Scene3d, mesh: Mesh, key: string, images: Image[]
   };
 }
 
+/**
+ * The panels' potential (with images) at given points, per solution of a level: its unit solutions,
+ * then the free charges' own (for εr = 1). The potential is linear in the densities, so that of the
+ * drives' densities x = Σ V_k·unit_k + free/εr is Σ V_k·values[k] + values[K]/εr. Kept per level
+ * (for the free charges' samples: the energy of a drive-only edit is then a weighted sum, not a sum
+ * over all panels). One pass: each panel's integral is computed once and weighted by every solution.
+ */
+const samplePotentials = new WeakMap<Level3d, { key: string; free: FreeSolution | null; values: Float64Array[] }>();
+
+function panelPotentials(level: Level3d, images: Image[], points: readonly number[][], key: string): Float64Array[] {
+  const kept = samplePotentials.get(level);
+  if (kept && kept.key === key && kept.free === level.free) return kept.values;
+  const xs = level.free ? [...level.unit, level.free.x] : level.unit;
+  const V = xs.length;
+  const values = xs.map(() => new Float64Array(points.length));
+  const P = level.sys.panels;
+  const r = [0, 0, 0];
+  const acc = new Float64Array(V);
+  points.forEach((p, s) => {
+    for (const im of images) {
+      reflect(im, p[0], p[1], p[2], r);
+      acc.fill(0);
+      for (let j = 0; j < P.count; j++) {
+        const g = panelPotential(P, j, r[0], r[1], r[2]);
+        for (let v = 0; v < V; v++) acc[v] += xs[v][j] * g;
+      }
+      for (let v = 0; v < V; v++) values[v][s] += im.sign * acc[v] * INV_4PI;
+    }
+  });
+  samplePotentials.set(level, { key, free: level.free, values });
+  return values;
+}
+
 /** W = ½ΣQ·V + ½Σ q_s·φ'(p_s) (see the header). */
 function energy(scene: Scene3d, out: LevelOutcome, images: Image[]): number {
   let w = 0;
   out.charges.forEach((q, k) => (w += 0.5 * q * out.potentials[k]));
   if (scene.charges.length === 0) return w;
   const k = 1 / (4 * Math.PI * EPSILON_0 * scene.medium.permittivity);
-  const buf = new Float64Array(4);
+  const samples = scene.charges.map(chargeSamples);
+  const points = samples.flatMap((c) => c.points);
+  // The panels' part of φ' at every sample, for these drives (see panelPotentials).
+  const unit = panelPotentials(out.level, images, points, JSON.stringify(points));
+  const K = out.potentials.length;
+  const phiPanels = (s: number) => {
+    let phi = 0;
+    for (let e = 0; e < K; e++) if (out.potentials[e] !== 0) phi += out.potentials[e] * unit[e][s];
+    if (out.level.free) phi += unit[K][s] / scene.medium.permittivity;
+    return phi;
+  };
   const r = [0, 0, 0];
-  scene.charges.forEach((f, fi) => {
-    const { points, charges } = chargeSamples(f);
+  let at = 0;
+  scene.charges.forEach((_f, fi) => {
+    const { points, charges } = samples[fi];
     points.forEach((p, s) => {
-      surfacePotentialAndGradient(out.state.sys, out.state.x, p[0], p[1], p[2], buf);
-      let phi = buf[0];
+      let phi = phiPanels(at++);
       images.forEach((im, ii) => {
         reflect(im, p[0], p[1], p[2], r);
         scene.charges.forEach((g, gi) => {
