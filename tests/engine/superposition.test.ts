@@ -104,6 +104,33 @@ describe('superposition of stored unit grids', () => {
     expectSame(warmed, solveScene(scene('10 kV', '2 nC'), options)!);
   });
 
+  it('cells on a line charge in the slice plane (values a quarter cell off it) match too', () => {
+    // Cell centres at z = 5, 15, ..., 95 mm: the line at z = 45 mm runs through a whole row of them.
+    const text = (hv: string) => `
+scene "Line through a slice"
+space 3d
+medium air
+mesh coarse
+electrode hv sphere center (0, 0, 20) mm radius 10 mm potential ${hv}
+electrode shield plate center (0, 0, 80) mm size (60, 60) mm normal z potential -1 kV
+charge beam line from (-100, 0, 45) mm to (100, 0, 45) mm density -0.4 nC/m
+slice xz at y = 0 from (-100, 0) mm to (100, 100) mm cells 20
+`;
+    const scene = (hv: string) => analyzeText(text(hv)).scene as Scene3d;
+    const full: SolveOptions = { level: 'full', convergence: false };
+    const cache = createEngineCache();
+    solveScene(scene('5 kV'), { ...full, cache });
+    const edited = solveScene(scene('7 kV'), { ...full, cache })!;
+    expect(edited.stats.timings.slicesSuperposed).toBeDefined();
+    const fresh = solveScene(scene('7 kV'), full)!;
+    // The row on the line holds finite values (taken a quarter cell off it).
+    const g = edited.slices[0];
+    const row = Array.from({ length: g.nu }, (_, i) => g.potential[4 * g.nu + i]);
+    expect(row.every(Number.isFinite)).toBe(true);
+    expectSame(edited, fresh);
+    expectSame(solveScene(scene('-2 kV'), { ...full, cache })!, solveScene(scene('-2 kV'), full)!);
+  });
+
   it('a grid large enough for the treecode matches too', () => {
     const cache = createEngineCache();
     solveScene(scene('10 kV', '2 nC', 150), { ...options, cache });

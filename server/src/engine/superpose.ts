@@ -546,21 +546,58 @@ export function superposedSlices(
     if (isCancelled?.()) return null;
     const values = s ? valuesFor(s, level, images, scene, potentials, ev, fresh, isCancelled) : valuesAt(fresh(), pts, ev);
     if (!values) return null;
-    const f = [0, 0, 0, 0];
+    // A cell centre on a point or line charge: the value a quarter cell off it (as evaluateSlices),
+    // from values stored like a probe's (the same cells at every drive edit: a line charge in the
+    // slice's plane has a whole row of them).
+    const onCharge: number[] = [];
     for (let i = 0; i < m; i++) {
-      for (let c = 0; c < 4; c++) f[c] = values[4 * i + c];
-      if (!f.every(Number.isFinite)) {
-        // A cell centre on a point or line charge: the value a quarter cell off it (as evaluateSlices).
-        L.centre(L.outside[i], p);
-        L.shift(p);
-        const g = potentialAndField(fresh(), p[0], p[1], p[2], 'grid');
-        for (let c = 0; c < 4; c++) f[c] = g[c];
+      for (let c = 0; c < 4; c++) if (!Number.isFinite(values[4 * i + c])) {
+        onCharge.push(i);
+        break;
       }
+    }
+    const shifted = onCharge.length > 0 ? shiftedValues(store, level, images, scene, potentials, key, L, onCharge, fresh, isCancelled) : null;
+    if (onCharge.length > 0 && !shifted) return null;
+    const f = [0, 0, 0, 0];
+    for (let i = 0, o = 0; i < m; i++) {
+      const from: Float64Array = o < onCharge.length && onCharge[o] === i ? shifted! : values;
+      const at = from === values ? i : o++;
+      for (let c = 0; c < 4; c++) f[c] = from[4 * at + c];
       L.store(L.outside[i], f);
     }
     out.push(L.result);
   }
   return out;
+}
+
+/** Values a quarter cell off the given cells (L.shift), by direct sums in 'grid' mode as evaluateSlices takes them, stored per cell set; null when cancelled. */
+function shiftedValues(
+  store: LevelStore,
+  level: Level3d,
+  images: Image[],
+  scene: Scene3d,
+  potentials: readonly number[],
+  sliceKey: string,
+  L: SliceLayout,
+  cells: number[],
+  fresh: () => FieldState3d,
+  isCancelled?: () => boolean,
+): Float64Array | null {
+  const key = `shifted ${sliceKey} ${cells.join(',')}`;
+  let s = store.probes.get(key);
+  if (!s) {
+    const pts = new Float64Array(3 * cells.length);
+    const p = [0, 0, 0];
+    cells.forEach((i, k) => {
+      L.centre(L.outside[i], p);
+      L.shift(p);
+      pts.set(p, 3 * k);
+    });
+    s = newStored(pts, level);
+    store.probes.set(key, s);
+    trim(store.probes, 8);
+  }
+  return valuesFor(s, level, images, scene, potentials, { tree: null, mode: 'grid' }, fresh, isCancelled);
 }
 
 function treeOf(store: LevelStore, level: Level3d, images: Image[]): FieldEvaluator {
