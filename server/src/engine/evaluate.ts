@@ -166,7 +166,16 @@ export interface SliceLayout {
   result: SliceResult;
 }
 
-/** `lines`: the slice's outlines and ground lines when already known (they depend on the geometry and the slice alone). */
+/** Which cells lie inside a conductor (its index, else −1) and which are outside everything (in the field): the geometry, the slice and the grid decide them. */
+export interface SliceCells {
+  inside: Int16Array;
+  outside: number[];
+}
+
+/**
+ * `lines`: the slice's outlines and ground lines, and `cells`: its cells' classification, when
+ * already known (a drive-only edit: they depend on the geometry, the slice and the grid alone).
+ */
 export function sliceLayout(
   scene: Scene3d,
   slice: Slice,
@@ -174,6 +183,7 @@ export function sliceLayout(
   potentials: readonly number[],
   diagnostics: Diagnostic[],
   lines?: Pick<SliceResult, 'outlines' | 'groundLines'>,
+  cells?: SliceCells,
 ): SliceLayout {
   const { nu, nv, du, dv, reduced } = sliceGrid(slice, maxGridCells);
   if (reduced) {
@@ -193,9 +203,22 @@ export function sliceLayout(
   const p = [0, 0, 0];
   p[iw] = slice.at;
   // Cells outside every conductor, and their centres.
-  const outside: number[] = [];
+  const outside: number[] = cells?.outside ?? [];
+  if (cells && cells.inside.length === count) {
+    // Known cells: conductors take their potential, cells neither inside nor outside are behind a ground plane.
+    const open = new Uint8Array(count);
+    for (const idx of outside) open[idx] = 1;
+    inside.set(cells.inside);
+    for (let idx = 0; idx < count; idx++) {
+      const k = inside[idx];
+      if (k >= 0) {
+        potential[idx] = potentials[k];
+        fieldU[idx] = fieldV[idx] = fieldMagnitude[idx] = NaN;
+      } else if (!open[idx]) potential[idx] = 0;
+    }
+  }
   const behind = behindGround(scene);
-  for (let j = 0; j < nv; j++) {
+  for (let j = 0; j < (cells ? 0 : nv); j++) {
     for (let i = 0; i < nu; i++) {
       const idx = j * nu + i;
       p[iu] = u0 + (i + 0.5) * du;

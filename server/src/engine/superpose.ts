@@ -26,7 +26,7 @@ import { GRID_FAR_RATIO, INV_4PI, type EvalMode } from './bem3d/system';
 import { reflect, type Image } from './bem3d/images';
 import { FAST_EVAL_MIN_PANELS } from './fast/bem3d';
 import { panelPotentialAndGradient } from './kernels/triangle';
-import { behindGround, FULL_GRID, probePoints, sliceLayout, type GridEvaluator, type SliceLayout } from './evaluate';
+import { behindGround, FULL_GRID, probePoints, sliceLayout, type GridEvaluator, type SliceCells, type SliceLayout } from './evaluate';
 import { FieldEvaluator } from './fast/field-evaluator';
 import type { EngineCache } from './index';
 import type { Cache3d } from './solve';
@@ -96,6 +96,8 @@ interface LevelStore {
   thin: Stored | null;
   /** Each slice's outlines and ground lines (the level's geometry and the slice decide them). */
   lines: Map<string, Pick<SliceResult, 'outlines' | 'groundLines'>>;
+  /** Each slice grid's cells (inside a conductor, or in the field), by slice and grid size. */
+  cells: Map<string, SliceCells>;
   /** The treecode over the level's panels (geometry only; densities are set per solution). */
   tree: FieldEvaluator | null;
   /** Uses of the level so far, and when the last was (a clock shared by all levels). */
@@ -129,7 +131,7 @@ function nextStep(points: number, ms: number): number {
 function storeOf(level: Level3d): LevelStore {
   let s = stores.get(level);
   if (!s) {
-    s = { signature: null, slices: new Map(), probes: new Map(), thin: null, lines: new Map(), tree: null, uses: 0, lastUse: 0 };
+    s = { signature: null, slices: new Map(), probes: new Map(), thin: null, lines: new Map(), cells: new Map(), tree: null, uses: 0, lastUse: 0 };
     stores.set(level, s);
   }
   return s;
@@ -520,9 +522,14 @@ export function superposedSlices(
   const fresh = () => (combined ??= combinedState(scene, level, images, potentials));
   for (const slice of scene.slices) {
     const where = JSON.stringify([slice.plane, slice.at, slice.from, slice.to]);
-    const L = sliceLayout(scene, slice, maxGridCells, potentials, diagnostics, store.lines.get(where));
+    const size = JSON.stringify([where, maxGridCells]);
+    const L = sliceLayout(scene, slice, maxGridCells, potentials, diagnostics, store.lines.get(where), store.cells.get(size));
     store.lines.set(where, { outlines: L.result.outlines, groundLines: L.result.groundLines });
     trim(store.lines, 16);
+    if (!store.cells.has(size)) {
+      store.cells.set(size, { inside: Int16Array.from(L.result.inside), outside: L.outside });
+      trim(store.cells, 16);
+    }
     const m = L.outside.length;
     const pts = new Float64Array(3 * m);
     const p = [0, 0, 0];
