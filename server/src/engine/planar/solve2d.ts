@@ -314,10 +314,10 @@ function drivenValues(stored: Stored | null, set: PointSet, weights: number[], f
 /**
  * Most elements of the 'coarse' level: twice the scene's element size, enlarged further to fit this.
  * The coarse picture is there to come first: its dense LU grows as N³, the matrix and the thin
- * elements' fields as N², so a budget bounds it at any mesh size (about 30 ms of LU here).
+ * elements' fields as N², so a budget bounds it at any mesh size (about 20 ms of LU here).
  * The full level and its convergence estimate are untouched.
  */
-export const COARSE_ELEMENTS_2D = 320;
+export const COARSE_ELEMENTS_2D = 256;
 
 /** Most factored levels kept in the cache (each holds an N² matrix factorization). */
 const CACHE_ENTRIES = 4;
@@ -618,11 +618,12 @@ function fieldsAt(
       // The reference point goes where the target went (mirrored for an image).
       const rx = image && mirror!.axis === 0 ? 2 * mirror!.at - near.x : near.x;
       const ry = image && mirror!.axis === 1 ? 2 * mirror!.at - near.y : near.y;
-      const isNear = Math.hypot(rx - el.mx, ry - el.my) <= near.r + 0.5 * el.length;
+      const reach = near.r + 0.5 * el.length;
+      const isNear = (rx - el.mx) ** 2 + (ry - el.my) ** 2 <= reach * reach;
       if (isNear !== keepNear) return;
     }
     g[0] = g[1] = g[2] = 0;
-    if (Math.hypot(px - el.mx, py - el.my) > FAR_RATIO * el.length) {
+    if ((px - el.mx) ** 2 + (py - el.my) ** 2 > (FAR_RATIO * el.length) ** 2) {
       for (let q = 0; q < FAR_RULE; q++) {
         const o = (j * FAR_RULE + q) * 3;
         setup.kernel(far[o], far[o + 1], px, py, far[o + 2], true, g);
