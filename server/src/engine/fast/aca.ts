@@ -11,6 +11,8 @@
 // agreement is checked in tests/fast and scripts/bench-fast.ts).
 // Only k rows and k columns of A are ever computed: O(k²(m + n)) work and O(k(m + n)) storage.
 // The true error ran a few times ε in practice (methods.md), so callers pass a margin.
+// The residual updates, K²(m + n)/2 of the work, run in WebAssembly SIMD (aca-kernel.wat).
+import acaKernelBytes from './aca-kernel.wat';
 
 /** Computes matrix entries for the fast solver; indices are the caller's own (original) numbering. */
 export interface EntrySource {
@@ -27,9 +29,69 @@ export interface LowRankFactors {
   V: Float64Array;
 }
 
+/** y[b] −= Σ_{l<k} c_l·A_l[b]: the residual update (aca-kernel.wat), on one Float64Array by index. */
+type Residual = (y: number, len: number, a: number, aStride: number, c: number, cStride: number, k: number) => void;
+
+/**
+ * Room for one block's factors, pivot row and pivot column on this thread: a WebAssembly memory
+ * for the SIMD residual kernel, or a plain array where WebAssembly is missing. `reserve` returns
+ * the view over it all (a new one whenever it grew), or null when it cannot grow.
+ */
+interface Scratch {
+  reserve(doubles: number): Float64Array | null;
+  residual: Residual;
+}
+
+let scratch: Scratch | undefined;
+
+function threadScratch(): Scratch {
+  if (scratch) return scratch;
+  let view = new Float64Array(0);
+  try {
+    const memory = new WebAssembly.Memory({ initial: 16 });
+    const k = new WebAssembly.Instance(new WebAssembly.Module(acaKernelBytes), { env: { memory } }).exports as unknown as { residual: Residual };
+    view = new Float64Array(memory.buffer);
+    scratch = {
+      reserve(doubles) {
+        if (8 * doubles > memory.buffer.byteLength) {
+          try {
+            memory.grow(Math.ceil((8 * doubles - memory.buffer.byteLength) / 65536));
+          } catch {
+            return null;
+          }
+        }
+        if (view.buffer !== memory.buffer) view = new Float64Array(memory.buffer);
+        return view;
+      },
+      residual: (y, len, a, aStride, c, cStride, n) => k.residual(8 * y, len, 8 * a, 8 * aStride, 8 * c, 8 * cStride, n),
+    };
+  } catch {
+    scratch = {
+      reserve(doubles) {
+        if (doubles > view.length) {
+          const grown = new Float64Array(Math.max(doubles, 2 * view.length));
+          grown.set(view);
+          view = grown;
+        }
+        return view;
+      },
+      residual: (y, len, a, aStride, c, cStride, n) => {
+        for (let l = 0; l < n; l++) {
+          const cl = view[c + l * cStride];
+          if (cl === 0) continue;
+          const o = a + l * aStride;
+          for (let b = 0; b < len; b++) view[y + b] -= cl * view[o + b];
+        }
+      },
+    };
+  }
+  return scratch;
+}
+
 /**
  * Approximates the block with rows order[r0 .. r0+m) and columns order[c0 .. c0+n).
  * Returns null when the rank needed would make the factors no smaller than the dense block.
+ * The factors returned are views into this thread's scratch memory: use them before the next call.
  */
 export function acaBlock(
   src: EntrySource,
@@ -41,29 +103,26 @@ export function acaBlock(
   eps: number,
 ): LowRankFactors | null {
   const maxRank = Math.floor((m * n) / (m + n));
-  // Factors in flat buffers that grow by doubling: U[l·m + a], V[l·n + b].
+  const S = threadScratch();
+  // Layout (doubles): the pivot row (n), the pivot column (m), then U[l·m + a] and V[l·n + b]
+  // for cap terms each; when cap doubles V moves up, U grows in place.
+  const ROW = 0, COL = n, U = n + m;
   let cap = Math.min(maxRank, 16);
-  let U = new Float64Array(cap * m);
-  let V = new Float64Array(cap * n);
+  let V = U + cap * m;
+  let A = S.reserve(V + cap * n);
+  if (!A) return null;
   let k = 0;
   const usedRow = new Uint8Array(m);
   let norm2 = 0;
   let i = 0;
   let zeroRows = 0;
-  const row = new Float64Array(n);
-  const col = new Float64Array(m);
   while (k < maxRank) {
     usedRow[i] = 1;
-    src.row(order[r0 + i], order, c0, n, row);
-    for (let l = 0; l < k; l++) {
-      const ui = U[l * m + i];
-      if (ui === 0) continue;
-      const o = l * n;
-      for (let b = 0; b < n; b++) row[b] -= ui * V[o + b];
-    }
+    src.row(order[r0 + i], order, c0, n, A.subarray(ROW, ROW + n));
+    S.residual(ROW, n, V, n, U + i, m, k);
     let j = 0, best = -1;
     for (let b = 0; b < n; b++) {
-      const a = Math.abs(row[b]);
+      const a = Math.abs(A[ROW + b]);
       if (a > best) {
         best = a;
         j = b;
@@ -77,27 +136,22 @@ export function acaBlock(
       continue;
     }
     if (k === cap) {
-      cap = Math.min(maxRank, 2 * cap);
-      const U2 = new Float64Array(cap * m), V2 = new Float64Array(cap * n);
-      U2.set(U);
-      V2.set(V);
-      U = U2;
-      V = V2;
+      const wider = Math.min(maxRank, 2 * cap);
+      A = S.reserve(U + wider * (m + n));
+      if (!A) return null;
+      A.copyWithin(U + wider * m, V, V + cap * n);
+      V = U + wider * m;
+      cap = wider;
     }
-    const inv = 1 / row[j];
-    const ov = k * n, ou = k * m;
-    for (let b = 0; b < n; b++) V[ov + b] = row[b] * inv;
-    src.col(order[c0 + j], order, r0, m, col);
-    for (let l = 0; l < k; l++) {
-      const vj = V[l * n + j];
-      if (vj === 0) continue;
-      const o = l * m;
-      for (let a = 0; a < m; a++) col[a] -= vj * U[o + a];
-    }
-    U.set(col, ou);
+    const inv = 1 / A[ROW + j];
+    const ov = V + k * n, ou = U + k * m;
+    for (let b = 0; b < n; b++) A[ov + b] = A[ROW + b] * inv;
+    src.col(order[c0 + j], order, r0, m, A.subarray(COL, COL + m));
+    S.residual(COL, m, U, m, V + j, n, k);
+    A.copyWithin(ou, COL, COL + m);
     let nu2 = 0, nv2 = 0;
-    for (let a = 0; a < m; a++) nu2 += col[a] * col[a];
-    for (let b = 0; b < n; b++) nv2 += V[ov + b] * V[ov + b];
+    for (let a = 0; a < m; a++) nu2 += A[COL + a] * A[COL + a];
+    for (let b = 0; b < n; b++) nv2 += A[ov + b] * A[ov + b];
     norm2 += nu2 * nv2;
     k++;
     if (nu2 * nv2 <= eps * eps * norm2) break;
@@ -105,7 +159,7 @@ export function acaBlock(
     let next = -1, big = -1;
     for (let a = 0; a < m; a++) {
       if (usedRow[a]) continue;
-      const x = Math.abs(col[a]);
+      const x = Math.abs(A[COL + a]);
       if (x > big) {
         big = x;
         next = a;
@@ -115,7 +169,7 @@ export function acaBlock(
     i = next;
   }
   if (k >= maxRank) return null;
-  return { rank: k, U: U.subarray(0, k * m), V: V.subarray(0, k * n) };
+  return { rank: k, U: A.subarray(U, U + k * m), V: A.subarray(V, V + k * n) };
 }
 
 function nextUnused(used: Uint8Array, from: number): number {

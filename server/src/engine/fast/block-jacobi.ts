@@ -277,12 +277,17 @@ function buildCoarse(
   return { coarse: { G, AR, owner }, coarseSolve: { G, start, size, lu: Ac, pivot: luFactor(Ac, G) }, inArena: at >= 0 };
 }
 
-/** Bands [t0, t1) of a CoarseBuild: each band's rows of A·Rᵀ summed over the stored blocks that meet them. */
-export function coarseBands(c: CoarseBuild, t0: number, t1: number): void {
+/**
+ * Bands [t0, t1) of a CoarseBuild: each band's rows of A·Rᵀ summed over the stored blocks that meet
+ * them. `sums` keeps each low-rank block's R·V (its V rows summed per coarse cluster) for the
+ * other bands the block meets, on this thread (pass the same map for all bands of one build).
+ */
+export function coarseBands(c: CoarseBuild, t0: number, t1: number, sums = new Map<number, Float64Array>()): void {
   const { AR, owner, G } = c;
   for (let t = t0; t < t1; t++) {
     const B0 = c.bands[t], B1 = c.bands[t + 1];
-    for (const p of c.packs) {
+    for (let q = 0; q < c.packs.length; q++) {
+      const p = c.packs[q];
       const H = p.heads, values = p.values;
       for (let b = 0; b < p.count; b++) {
         const h = 6 * b, r0 = H[h], m = H[h + 1];
@@ -308,9 +313,13 @@ export function coarseBands(c: CoarseBuild, t0: number, t1: number): void {
           continue;
         }
         // The block's columns span whole clusters J0..J1 (tree order): sum V's rows per cluster.
-        const J0 = owner[c0], nj = owner[c0 + n - 1] - J0 + 1, vOff = off + rank * m;
-        const vs = new Float64Array(rank * nj);
-        for (let l = 0; l < rank; l++) for (let k = 0; k < n; k++) vs[l * nj + owner[c0 + k] - J0] += values[vOff + l * n + k];
+        const J0 = owner[c0], nj = owner[c0 + n - 1] - J0 + 1, vOff = off + rank * m, key = q * 65536 + b;
+        let vs = sums.get(key);
+        if (!vs) {
+          vs = new Float64Array(rank * nj);
+          for (let l = 0; l < rank; l++) for (let k = 0; k < n; k++) vs[l * nj + owner[c0 + k] - J0] += values[vOff + l * n + k];
+          if (a0 > 0 || a1 < m) sums.set(key, vs);
+        }
         // AR[r0 + a][J0 + J] += Σ_l U_l[a]·vs_l[J], one factor column at a time (contiguous rows).
         for (let l = 0; l < rank; l++) {
           const ou = off + l * m, ov = l * nj;

@@ -225,10 +225,11 @@ export interface CoarseJob extends CoarseBuild {
 
 export function runCoarse(job: CoarseJob): void {
   const count = job.bands.length - 1;
+  const sums = new Map<number, Float64Array>();
   for (;;) {
     const t = Atomics.add(job.counter, 0, 1);
     if (t >= count) return;
-    coarseBands(job, t, t + 1);
+    coarseBands(job, t, t + 1, sums);
   }
 }
 
