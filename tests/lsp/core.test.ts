@@ -84,7 +84,9 @@ describe('server core', () => {
     core.update(uri, scene(1), 1);
     vi.advanceTimersByTime(defaultSettings.solveDelay);
     const marked: Result = { ...result, diagnostics: [{ code: 'VS401', severity: 'warning', message: 'peak', range: result.electrodes[0].range }] };
+    solver.jobs[0].callbacks.onLevel?.('coarse');
     solver.jobs[0].callbacks.onResult('coarse', marked, 5);
+    solver.jobs[0].callbacks.onLevel?.('full');
     solver.jobs[0].callbacks.onResult('full', marked, 7);
     solver.jobs[0].callbacks.onDone('done');
     const results = events.filter((e) => e.kind === 'voltscape/result').map((e) => [e.params.version, e.params.level, e.params.stale]);
@@ -95,7 +97,26 @@ describe('server core', () => {
     const lastDiagnostics = events.filter((e) => e.kind === 'diagnostics').pop()!.params;
     expect(lastDiagnostics.version).toBe(1);
     expect(lastDiagnostics.diagnostics.map((d: any) => d.code)).toEqual(['VS401']);
-    expect(events.filter((e) => e.kind === 'voltscape/solveStatus').map((e) => e.params.state)).toEqual(['queued', 'solving', 'solving', 'done']);
+    expect(events.filter((e) => e.kind === 'voltscape/solveStatus').map((e) => [e.params.state, e.params.level])).toEqual([
+      ['queued', undefined],
+      ['solving', undefined],
+      ['solving', 'coarse'],
+      ['solving', 'full'],
+      ['done', undefined],
+    ]);
+  });
+
+  it('says "solving" with the level the worker started, so never "coarse" when the worker skips that level', () => {
+    const { host, events } = recordingHost();
+    const solver = new RecordingSolver();
+    const core = new ServerCore(host, solver);
+    core.update(uri, scene(1), 1);
+    vi.advanceTimersByTime(defaultSettings.solveDelay);
+    solver.jobs[0].callbacks.onLevel?.('full');
+    solver.jobs[0].callbacks.onResult('full', result, 7);
+    solver.jobs[0].callbacks.onDone('done');
+    const levels = events.filter((e) => e.kind === 'voltscape/solveStatus' && e.params.state === 'solving').map((e) => e.params.level);
+    expect(levels).toEqual([undefined, 'full']);
   });
 
   it('asks a 3d drive-only edit for both levels with the same geometry (the worker skips the coarse one once warm); a 2d one for the full level only', () => {

@@ -12,8 +12,9 @@ describe('solve runner', () => {
   it('caps the coarse picture grid without a grid warning, and reports each level then done', () => {
     const out: FromWorker[] = [];
     runSolveJob({ ...job, levels: ['coarse'] }, createEngineCache(), () => false, (m) => out.push(m));
-    expect(out.map((m) => m.type)).toEqual(['result', 'done']);
-    const first = out[0] as Extract<FromWorker, { type: 'result' }>;
+    expect(out.map((m) => m.type)).toEqual(['started', 'result', 'done']);
+    expect(out[0]).toEqual({ type: 'started', id: 7, level: 'coarse' });
+    const first = out[1] as Extract<FromWorker, { type: 'result' }>;
     expect(first.id).toBe(7);
     expect(first.level).toBe('coarse');
     const slice = first.result.slices[0];
@@ -49,8 +50,10 @@ describe('solve runner', () => {
     const warmOut: FromWorker[] = [];
     runSolveJob(drive, cache, () => false, (m) => warmOut.push(m), warm);
     expect(levelsOf(warmOut)).toEqual(['full']);
+    // The worker says which level it starts (the status bar shows it): only the full one here.
+    expect(warmOut.filter((m) => m.type === 'started')).toEqual([{ type: 'started', id: 7, level: 'full' }]);
     // The summed picture is the fresh solve's (superposition: Jackson, Classical Electrodynamics, sec. 1.13).
-    const full = (warmOut[0] as Extract<FromWorker, { type: 'result' }>).result;
+    const full = (warmOut.find((m) => m.type === 'result') as Extract<FromWorker, { type: 'result' }>).result;
     const fresh = solveScene(drive.scene, { level: 'full', maxPanels: job.maxPanels, maxGridCells: job.maxGridCells })!;
     const scale = Math.max(...fresh.electrodes.map((e) => Math.abs(e.charge)));
     full.electrodes.forEach((e, k) => expect(Math.abs(e.charge - fresh.electrodes[k].charge)).toBeLessThan(1e-9 * scale));

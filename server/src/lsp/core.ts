@@ -206,11 +206,16 @@ export class ServerCore {
         current.solveDiagnostics = { version, diagnostics: [...levelDiagnostics, remark] };
         this.publish(current);
       };
-      this.status(state, { state: 'solving', level: levels[0] });
+      // The level in the status is the one the worker says it started (it skips the coarse one when it can).
+      this.status(state, { state: 'solving' });
       this.solver.solve(
         uri,
         { scene, levels, maxPanels: this.settings.maxPanels, maxGridCells: this.settings.maxGridCells, geometry },
         {
+          onLevel: (level) => {
+            const current = this.documents.get(uri);
+            if (current && current.document.version === version) this.status(current, { state: 'solving', level });
+          },
           onResult: (level, result, solveMs) => {
             const current = this.documents.get(uri);
             if (!current || current.document.version !== version) return;
@@ -218,7 +223,6 @@ export class ServerCore {
             current.solveDiagnostics = { version, diagnostics: result.diagnostics };
             this.publish(current);
             this.host.notify(ResultNotification, this.resultParams(current, current.solved));
-            if (level === 'coarse') this.status(current, { state: 'solving', level: 'full' });
           },
           onDone: (outcome, message) => {
             clearTimeout(deadline);

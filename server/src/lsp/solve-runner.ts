@@ -72,6 +72,7 @@ export function runSolveJob(
     const levels = warm.has(warmKey(job)) && job.levels.includes('full') ? (['full'] as const) : job.levels;
     for (const level of levels) {
       if (isCancelled()) return post({ type: 'done', id: job.id, state: 'cancelled' });
+      post({ type: 'started', id: job.id, level });
       const started = performance.now();
       const result = withGridBuilding('stored-only', () => solveLevel(job.scene, job, level, cache, isCancelled));
       if (result === null || isCancelled()) return post({ type: 'done', id: job.id, state: 'cancelled' });

@@ -21,6 +21,8 @@ export interface SolveRequest {
 }
 
 export interface SolveCallbacks {
+  /** The worker started solving a level of the newest job of this document (optional: the status bar's "coarse"). */
+  onLevel?(level: SolveLevel): void;
   /** One level finished for the newest job of this document. */
   onResult(level: SolveLevel, result: Result, solveMs: number): void;
   /** The job ended: all levels done, cancelled by a newer job, or failed. */
@@ -175,6 +177,10 @@ export class WorkerSolver implements Solver {
     const p = this.pending.get(message.id);
     if (!p) return;
     const current = this.generations.isCurrent(p.slot, p.generation);
+    if (message.type === 'started') {
+      if (current) p.callbacks.onLevel?.(message.level);
+      return;
+    }
     if (message.type === 'result') {
       if (current) p.callbacks.onResult?.(message.level, message.result, message.solveMs);
       return;

@@ -51,6 +51,8 @@ export interface SweepJob {
 export type ToWorker = SolveJob | SweepJob | { type: 'dispose' };
 
 export type FromWorker =
+  /** A level is being solved (the worker skips the coarse one for a scene whose stored grids are ready). */
+  | { type: 'started'; id: number; level: SolveLevel }
   | { type: 'result'; id: number; level: SolveLevel; result: Result; solveMs: number }
   | { type: 'sweep'; id: number; sweep: SweepPayload; solveMs: number }
   | { type: 'done'; id: number; state: 'done' | 'cancelled' | 'failed'; message?: string };
