@@ -124,6 +124,8 @@ interface FarField<T> {
   gather(t: T, list: number[], count: number): void;
   /** Adds the represented (φ, E_u, E_v) at scene point (u, v) to acc. */
   addAt(t: T, u: number, v: number, acc: Float64Array): void;
+  /** The block is done with t (its memory may serve a later block). */
+  release(t: T): void;
 }
 
 /**
@@ -562,6 +564,7 @@ export function gridEvaluate(src: GridSources, grid: Grid2d, mask: Uint8Array, o
       visit(i0, i1, j0, mid, here, near);
       visit(i0, i1, mid, j1, here, near);
     }
+    if (here && here !== parent) farField.release(here);
   };
   visit(0, nu, 0, nv, null, items);
   return counts;
@@ -618,6 +621,7 @@ function interpolationField(p: number, width: number, sumAt: (list: number[], co
       }
     },
     addAt: interpolateInto,
+    release() {},
   };
 }
 
@@ -660,6 +664,7 @@ function expansionField(
   const K = taus.length;
   const T = terms + 1;
   const qs = new Float64Array(K);
+  const spare: Expansion[] = [];
   /** Adds sources at (xs, ys) with charge qs[b]·sign for each density b. */
   const addSource = (t: Expansion, xs: number, ys: number, sign: number) => {
     const ax = xs - t.zx, ay = ys - t.zy;
@@ -684,7 +689,16 @@ function expansionField(
   };
   return {
     make(ua, ub, _cu, va, vb) {
-      return { zx: 0.5 * (ua + ub), zy: 0.5 * (va + vb), reach: 0.5 * Math.hypot(ub - ua, vb - va), re: new Float64Array(K * T), im: new Float64Array(K * T) };
+      const zx = 0.5 * (ua + ub), zy = 0.5 * (va + vb), reach = 0.5 * Math.hypot(ub - ua, vb - va);
+      // Only the blocks on the current path hold series: a few arrays serve the whole walk.
+      const t = spare.pop();
+      if (!t) return { zx, zy, reach, re: new Float64Array(K * T), im: new Float64Array(K * T) };
+      t.zx = zx;
+      t.zy = zy;
+      t.reach = reach;
+      t.re.fill(0);
+      t.im.fill(0);
+      return t;
     },
     carry(parent, child) {
       const re = child.re, im = child.im;
@@ -759,6 +773,9 @@ function expansionField(
         acc[3 * b + 1] -= dr;
         acc[3 * b + 2] += di;
       }
+    },
+    release(t) {
+      spare.push(t);
     },
   };
 }
