@@ -92,6 +92,7 @@ export class ServerCore {
 
   /** A document was opened or changed: analyse now, publish diagnostics, solve after the debounce. */
   update(uri: string, text: string, version: number): DocumentState {
+    const arrived = Date.now();
     const previous = this.documents.get(uri);
     const document = TextDocument.create(uri, 'vscape', version, text);
     const analysis = analyzeText(text);
@@ -105,7 +106,7 @@ export class ServerCore {
     };
     this.documents.set(uri, state);
     this.publish(state);
-    this.scheduleSolve(state);
+    this.scheduleSolve(state, arrived);
     return state;
   }
 
@@ -165,7 +166,8 @@ export class ServerCore {
     this.timers.delete(uri);
   }
 
-  private scheduleSolve(state: DocumentState): void {
+  /** `since`: when the change arrived (the debounce counts from then, so the analysis of the keystroke is part of it). */
+  private scheduleSolve(state: DocumentState, since = Date.now()): void {
     const { uri } = state;
     this.clearTimer(uri);
     this.solver.cancel(uri);
@@ -243,7 +245,7 @@ export class ServerCore {
         },
       );
     };
-    this.timers.set(uri, setTimeout(start, this.settings.solveDelay));
+    this.timers.set(uri, setTimeout(start, Math.max(0, this.settings.solveDelay - (Date.now() - since))));
   }
 
   /**
