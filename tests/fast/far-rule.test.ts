@@ -2,6 +2,8 @@ import { describe, expect, it } from 'vitest';
 import { panelPotential, preparePanels } from '../../server/src/engine/kernels/triangle';
 import { createFarRule } from '../../server/src/engine/kernels/far-rule';
 import { panelEntrySource } from '../../server/src/engine/fast/panel-entries';
+import { fillDenseRows, INV_4PI } from '../../server/src/engine/bem3d/system';
+import type { Image } from '../../server/src/engine/bem3d/images';
 import { boxSurface, icosphere, joinMeshes } from './fixtures';
 
 // A sphere and a long box: observation points from on the panels to many diameters away, so every
@@ -51,6 +53,24 @@ describe('far-field panel integrals in WebAssembly (kernels/far-rule.wat)', () =
         for (let k = 0; k < N - 3; k++) expect(row[k]).toBe(exact(a, all[3 + k]));
         src.col(a, all, 5, N - 5, col);
         for (let k = 0; k < N - 5; k++) expect(col[k]).toBe(exact(all[5 + k], a));
+      }
+    }
+  });
+
+  it('fills the dense 3D matrix rows exactly as triangle.ts alone, with and without a ground plane, all or some columns', () => {
+    for (const images of [[ground[0]], ground] as Image[][]) {
+      const rows = Int32Array.from({ length: 40 }, (_, t) => (t * 37) % N);
+      const cols = Int32Array.from({ length: 300 }, (_, t) => (t * 11) % N);
+      for (const only of [undefined, cols]) {
+        const A = new Float64Array(N * N);
+        expect(fillDenseRows(P, mesh.centroid, images, rows, A, undefined, only)).toBe(true);
+        for (const i of rows) {
+          for (const j of only ?? all) {
+            let v = 0;
+            for (const im of images) v += im.sign * panelPotential(P, j, im.flip[0] * mesh.centroid[3 * i] + im.shift[0], im.flip[1] * mesh.centroid[3 * i + 1] + im.shift[1], im.flip[2] * mesh.centroid[3 * i + 2] + im.shift[2]);
+            expect(A[i * N + j]).toBe(INV_4PI * v);
+          }
+        }
       }
     }
   });

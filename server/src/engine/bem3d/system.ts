@@ -10,6 +10,7 @@
 import type { Mesh } from '../mesh/types';
 import { panelPotential, panelPotentialAndGradient, preparePanels, type Panels } from '../kernels/triangle';
 import { reflect, type Image } from './images';
+import { createFarRule, type FarRule } from '../kernels/far-rule';
 
 export const INV_4PI = 1 / (4 * Math.PI);
 
@@ -223,6 +224,19 @@ export function fillThinRows(
   return true;
 }
 
+const farRules = new WeakMap<Panels, { points: Float64Array; rule: FarRule; all: Int32Array } | null>();
+
+/** The far rule of a panel set with its collocation points, made once per panel set on this thread (null without WebAssembly). */
+function farRuleFor(P: Panels, points: Float64Array): { rule: FarRule; all: Int32Array } | null {
+  let f = farRules.get(P);
+  if (f === undefined || (f && f.points !== points)) {
+    const rule = createFarRule(P, points);
+    f = rule ? { points, rule, all: Int32Array.from({ length: P.count }, (_, j) => j) } : null;
+    farRules.set(P, f);
+  }
+  return f;
+}
+
 /**
  * Fills the given rows of the dense matrix A (n×n, row-major) with the potential entries, in the
  * given columns (all when absent). Plain arrays only, so that a worker thread could fill rows of a
@@ -242,6 +256,12 @@ export function fillDenseRows(
   const sign = Float64Array.from(images, (im) => im.sign);
   const rx = new Float64Array(I), ry = new Float64Array(I), rz = new Float64Array(I);
   const r = [0, 0, 0];
+  // The far entries from kernels/far-rule.ts (the same numbers to the bit), the rest from
+  // panelPotential; summed over the images in order, then scaled, as below without it.
+  const far = rows.length > 1 ? farRuleFor(P, points) : null;
+  const list = cols ?? far?.all;
+  const count = cols ? cols.length : n;
+  const v = far ? new Float64Array(count) : null;
   for (let t = 0; t < rows.length; t++) {
     if ((t & 63) === 0 && isCancelled?.()) return false;
     const i = rows[t], row = i * n;
@@ -251,12 +271,25 @@ export function fillDenseRows(
       ry[k] = r[1];
       rz[k] = r[2];
     }
+    if (far && v && list) {
+      v.fill(0);
+      for (let k = 0; k < I; k++) {
+        const x = rx[k], y = ry[k], z = rz[k];
+        const G = far.rule.row(x, y, z, list, 0, count);
+        for (let m = 0; m < count; m++) {
+          const g = G[m];
+          v[m] += sign[k] * (g === g ? g : panelPotential(P, list[m], x, y, z));
+        }
+      }
+      for (let m = 0; m < count; m++) A[row + list[m]] = INV_4PI * v[m];
+      continue;
+    }
     if (cols) {
       for (let m = 0; m < cols.length; m++) {
         const j = cols[m];
-        let v = 0;
-        for (let k = 0; k < I; k++) v += sign[k] * panelPotential(P, j, rx[k], ry[k], rz[k]);
-        A[row + j] = INV_4PI * v;
+        let w = 0;
+        for (let k = 0; k < I; k++) w += sign[k] * panelPotential(P, j, rx[k], ry[k], rz[k]);
+        A[row + j] = INV_4PI * w;
       }
       continue;
     }
@@ -266,9 +299,9 @@ export function fillDenseRows(
       continue;
     }
     for (let j = 0; j < n; j++) {
-      let v = 0;
-      for (let k = 0; k < I; k++) v += sign[k] * panelPotential(P, j, rx[k], ry[k], rz[k]);
-      A[row + j] = INV_4PI * v;
+      let w = 0;
+      for (let k = 0; k < I; k++) w += sign[k] * panelPotential(P, j, rx[k], ry[k], rz[k]);
+      A[row + j] = INV_4PI * w;
     }
   }
   return true;
