@@ -8,8 +8,8 @@
 //
 // Coarse level: one unknown per coarse cluster (at most MAX_COARSE of them), a constant density
 // over it. With R summing a vector over each cluster, A·Rᵀ (N×G) is summed straight from the stored
-// blocks (a dense block adds its entries, a low-rank block U Vᵀ adds U·(R V)ᵀ) in one pass over the
-// storage, and A_c = R·A·Rᵀ from it. The levels are combined multiplicatively, coarse first (the
+// blocks (a dense block adds its entries, a low-rank block U Vᵀ adds U·(R V)ᵀ), in row bands that
+// threads share, and A_c = R·A·Rᵀ from it. The levels are combined multiplicatively, coarse first (the
 // hybrid two-level Schwarz method; Toselli and Widlund, "Domain Decomposition Methods", 2005,
 // sec. 2.5.2, from memory):
 //   M⁻¹ = Q + M₁⁻¹ (I − A Q),  Q = Rᵀ A_c⁻¹ R,
