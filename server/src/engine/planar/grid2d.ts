@@ -80,14 +80,17 @@ const LEAF_CELLS = 16;
 const EXPANSION_LEAF_CELLS = 8;
 
 /**
- * Gauss rules by distance d from an element's midpoint, in squared element lengths: 3 points beyond
- * 4 lengths, 5 beyond 1.5, closer the adaptive rule of bem2d.ts. An n-point Gauss rule errs by about
+ * Gauss rules by distance d from an element's midpoint, in squared element lengths: 2 points beyond
+ * 8 lengths (direct sums and interpolation points), 3 beyond 4 lengths, 5 beyond 1.5, closer the
+ * adaptive rule of bem2d.ts. An n-point Gauss rule errs by about
  * ρ^−2n for an integrand analytic inside the Bernstein ellipse ρ (Trefethen, ATAP ch. 19); the kernel
  * is singular at the target, ρ ≈ 2d/L + √((2d/L)² + 1): 16 at 4 lengths (ρ^−6 ≈ 6e-8), 6.2 at 1.5
  * (ρ^−10 ≈ 1e-8) of that element's share.
  */
 const NEAR3 = 16;
 const NEAR5 = 2.25;
+/** ρ ≈ 32 at 8 lengths: ρ^−4 ≈ 1e-6 of the element's share. */
+const NEAR2 = 64;
 
 /** An n-point Gauss rule on every element: x, y, weight·length per point. */
 function curveRules(elements: Element2d[], n: number): Float64Array {
@@ -293,13 +296,13 @@ function proxySet(c: Clusters, elements: Element2d[], k: number, set: number, or
 let evaluations = 0;
 
 /** What depends on the elements alone (Gauss points, clusters), kept per element list and order. */
-const geometries = new WeakMap<Element2d[], Map<number, { rule3: Float64Array; rule5: Float64Array; clusters: Clusters }>>();
+const geometries = new WeakMap<Element2d[], Map<number, { rule2: Float64Array; rule3: Float64Array; rule5: Float64Array; clusters: Clusters }>>();
 
-function geometryOf(elements: Element2d[], order: number): { rule3: Float64Array; rule5: Float64Array; clusters: Clusters } {
+function geometryOf(elements: Element2d[], order: number): { rule2: Float64Array; rule3: Float64Array; rule5: Float64Array; clusters: Clusters } {
   let byOrder = geometries.get(elements);
   if (!byOrder) geometries.set(elements, (byOrder = new Map()));
   let g = byOrder.get(order);
-  if (!g) byOrder.set(order, (g = { rule3: curveRules(elements, 3), rule5: curveRules(elements, 5), clusters: buildClusters(elements, order) }));
+  if (!g) byOrder.set(order, (g = { rule2: curveRules(elements, 2), rule3: curveRules(elements, 3), rule5: curveRules(elements, 5), clusters: buildClusters(elements, order) }));
   return g;
 }
 
@@ -341,7 +344,7 @@ export function gridEvaluate(src: GridSources, grid: Grid2d, mask: Uint8Array, o
   /** Values per point: (φ, E_u, E_v) for each density. */
   const W = 3 * K;
   if (n === 0 || K === 0) return counts;
-  const { rule3, rule5, clusters } = geometryOf(elements, accuracy.order);
+  const { rule2, rule3, rule5, clusters } = geometryOf(elements, accuracy.order);
   const stamp = ++evaluations;
   /** Cluster k's proxy set `set` with this evaluation's charges. */
   const charged = (k: number, set: number): Proxies => {
@@ -443,7 +446,11 @@ export function gridEvaluate(src: GridSources, grid: Grid2d, mask: Uint8Array, o
     const dy = y - el.my;
     const d2 = dx * dx + dy * dy;
     const l2 = el.length * el.length;
-    if (d2 > NEAR3 * l2) {
+    if (d2 > NEAR2 * l2) {
+      const o = id * 6;
+      kernel(rule2[o], rule2[o + 1], x, y, rule2[o + 2], true, g);
+      kernel(rule2[o + 3], rule2[o + 4], x, y, rule2[o + 5], true, g);
+    } else if (d2 > NEAR3 * l2) {
       const o = id * 9;
       kernel(rule3[o], rule3[o + 1], x, y, rule3[o + 2], true, g);
       kernel(rule3[o + 3], rule3[o + 4], x, y, rule3[o + 5], true, g);
