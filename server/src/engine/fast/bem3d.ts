@@ -137,14 +137,19 @@ function rowsParallel(
 /** Below this many unknowns a dense product stays on the calling thread. */
 const PARALLEL_PRODUCT_MIN_UNKNOWNS = 400;
 
+let productScratch: Float64Array<ArrayBufferLike> = new Float64Array(0);
+
 /** The dense product with rows shared between threads; the matrix must be in shared memory. */
 export function denseProductParallel(n: number, A: Float64Array, xs: Float64Array[], ys: Float64Array[]): void {
   const threads = fastThreads();
   if (threads < 2 || n < PARALLEL_PRODUCT_MIN_UNKNOWNS || !(A.buffer instanceof SharedArrayBuffer)) return denseProductHere(n, A, xs, ys);
   const K = xs.length;
-  const sx = new Float64Array(new SharedArrayBuffer(8 * K * n));
+  // Shared vectors kept between products (a GMRES solve makes one per round; fresh shared buffers
+  // each time were garbage the collector had to chase).
+  if (productScratch.length < 2 * K * n) productScratch = new Float64Array(new SharedArrayBuffer(16 * K * n));
+  const sx = productScratch.subarray(0, K * n), sy = productScratch.subarray(K * n, 2 * K * n);
   xs.forEach((x, v) => sx.set(x, v * n));
-  const job: DenseProductJob = { kind: 'dense-product', A, n, K, xs: sx, ys: new Float64Array(new SharedArrayBuffer(8 * K * n)), counter: new Int32Array(new SharedArrayBuffer(4)), chunk: 32 };
+  const job: DenseProductJob = { kind: 'dense-product', A, n, K, xs: sx, ys: sy, counter: new Int32Array(new SharedArrayBuffer(4)), chunk: 32 };
   const replies = runParallel(threads, job as unknown as Record<string, unknown>, () => runDenseProduct(job));
   if (!replies) return denseProductHere(n, A, xs, ys);
   ys.forEach((y, v) => y.set(job.ys.subarray(v * n, (v + 1) * n)));
