@@ -21,6 +21,7 @@ export interface ProductKernel {
   dot1(a: number, x: number, len: number): number;
   blocks1(heads: number, b0: number, b1: number, values: number, x: number, y: number): void;
   blocks2(heads: number, b0: number, b1: number, values: number, x1: number, y1: number, x2: number, y2: number): void;
+  blocks4(heads: number, b0: number, b1: number, values: number, x0: number, y0: number, x1: number, y1: number, x2: number, y2: number, x3: number, y3: number): void;
 }
 
 let compiled: WebAssembly.Module | null | undefined;

@@ -208,12 +208,16 @@ function sharedCopy<T extends Float32Array | Int32Array>(a: T): T {
  * a time in the inner loops (each stored number is loaded once per group).
  *
  * With `kernel` (which the caller passes only when xs and ys are views into the arena too), a pack
- * in the arena goes through the SIMD kernel, two vectors a pass; the rest in JavaScript.
+ * in the arena goes through the SIMD kernel, four or two vectors a pass; the rest in JavaScript.
  */
 export function packProduct(p: BlockPack, b0: number, b1: number, xs: Float64Array, ys: Float64Array, K: number, n: number, kernel?: ProductKernel | null): void {
   if (kernel && p.wasm) {
     const H = p.heads.byteOffset, A = p.values.byteOffset, X = xs.byteOffset, Y = ys.byteOffset, step = 8 * n;
     let v = 0;
+    for (; v + 3 < K; v += 4) {
+      const o = v * step;
+      kernel.blocks4(H, b0, b1, A, X + o, Y + o, X + o + step, Y + o + step, X + o + 2 * step, Y + o + 2 * step, X + o + 3 * step, Y + o + 3 * step);
+    }
     for (; v + 1 < K; v += 2) kernel.blocks2(H, b0, b1, A, X + v * step, Y + v * step, X + (v + 1) * step, Y + (v + 1) * step);
     if (v < K) kernel.blocks1(H, b0, b1, A, X + v * step, Y + v * step);
     return;
