@@ -104,14 +104,16 @@ describe('superposition of stored unit grids', () => {
     expectSame(warmed, solveScene(scene('10 kV', '2 nC'), options)!);
   });
 
-  it('cells on a line charge in the slice plane (values a quarter cell off it) match too', () => {
-    // Cell centres at z = 5, 15, ..., 95 mm: the line at z = 45 mm runs through a whole row of them.
+  it('cells on a line charge in the slice plane (values a quarter cell off it) and behind a ground plane match too', () => {
+    // Cell centres at z = 5, 15, ..., 95 mm: the line at z = 45 mm runs through a whole row of them,
+    // and the row at z = 5 mm lies behind the ground plane (0 V, no field).
     const text = (hv: string) => `
 scene "Line through a slice"
 space 3d
 medium air
 mesh coarse
-electrode hv sphere center (0, 0, 20) mm radius 10 mm potential ${hv}
+ground plane at z = 10 mm
+electrode hv sphere center (0, 0, 25) mm radius 10 mm potential ${hv}
 electrode shield plate center (0, 0, 80) mm size (60, 60) mm normal z potential -1 kV
 charge beam line from (-100, 0, 45) mm to (100, 0, 45) mm density -0.4 nC/m
 slice xz at y = 0 from (-100, 0) mm to (100, 100) mm cells 20
@@ -127,6 +129,8 @@ slice xz at y = 0 from (-100, 0) mm to (100, 100) mm cells 20
     const g = edited.slices[0];
     const row = Array.from({ length: g.nu }, (_, i) => g.potential[4 * g.nu + i]);
     expect(row.every(Number.isFinite)).toBe(true);
+    const behind = Array.from({ length: g.nu }, (_, i) => [g.potential[i], g.fieldMagnitude[i]]);
+    expect(behind.flat().every((v) => v === 0)).toBe(true);
     expectSame(edited, fresh);
     expectSame(solveScene(scene('-2 kV'), { ...full, cache })!, solveScene(scene('-2 kV'), full)!);
   });

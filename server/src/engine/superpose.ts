@@ -476,9 +476,10 @@ function fromLast(s: Stored, level: Level3d, images: Image[], potentials: readon
 /**
  * Builds, in the background, the stored grids that the latest uses of the levels of the most
  * recently used geometry went through (at most `levels` of them: its coarse level, and the full
- * solve's two, its estimate's and its own; solve.ts), the cheapest first, in resumable steps. True
- * when they are all complete; false when stopped by isCancelled (what was built is kept). The
- * levels are those of the engine cache (index.ts EngineCache, 3d store), keyed `geometry|scale|solver`.
+ * solve's two, its estimate's and its own; solve.ts), the coarsest level first and each level's
+ * cheapest first, in resumable steps. True when they are all complete; false when stopped by
+ * isCancelled (what was built is kept). The levels are those of the engine cache (index.ts
+ * EngineCache, 3d store), keyed `geometry|scale|solver`.
  */
 export function warmStoredGrids(cache: EngineCache, isCancelled: () => boolean, levels = 3): boolean {
   const c3 = cache.store.get('3d') as Cache3d | undefined;
@@ -493,10 +494,10 @@ export function warmStoredGrids(cache: EngineCache, isCancelled: () => boolean, 
   const work = used.flatMap(({ level, store }) =>
     [...store.slices.values(), ...store.probes.values(), ...(store.thin ? [store.thin] : [])]
       .filter((s) => s.use?.at === store.uses)
-      // Work in point-panel pairs, so that the coarse level's grids (what a drive edit's first picture needs) come first.
-      .map((s) => ({ s, level, left: workLeft(s, level, s.use!.ev) * level.sys.n })),
+      .map((s) => ({ s, level, left: workLeft(s, level, s.use!.ev) })),
   );
-  work.sort((a, b) => a.left - b.left);
+  // The coarsest level first (what a drive edit's first picture needs), then the cheapest first.
+  work.sort((a, b) => a.level.sys.n - b.level.sys.n || a.left - b.left);
   for (const { s, level } of work) {
     const use = s.use!;
     if (!complete(s, level, use.images, use.charges, use.ev, isCancelled)) return false;

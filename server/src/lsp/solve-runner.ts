@@ -88,7 +88,7 @@ export function runSolveJob(
 
 /**
  * Idle work after a job that ended 'done': builds the stored grids its solves went through (3d;
- * engine/superpose.ts warmStoredGrids), cheapest first, so the next drive edit sums them. Stops when
+ * engine/superpose.ts warmStoredGrids), coarsest level first, so the next drive edit sums them. Stops when
  * `stop` says so (a new job was posted); what was built is kept and the next warm-up goes on from
  * there. Returns whether the scene is warm.
  */
