@@ -291,9 +291,39 @@ function energy(scene: Scene3d, out: LevelOutcome, images: Image[]): number {
  * pair. Panel size: √(2·area), the leg of a right isosceles panel of that area.
  */
 function gapDiagnostics(scene: Scene3d, mesh: Mesh, scale: number, diagnostics: Diagnostic[]): void {
+  for (const w of worstGaps(scene, mesh, scale)) {
+    if (w.ratio >= GAP_PANELS) continue;
+    const e = scene.electrodes[w.a];
+    diagnostics.push(
+      diagnostic(
+        'VS403',
+        e.nameRange,
+        `Mesh too coarse for the gap of ${formatQuantity(w.gap, 'length')} between ${e.name} and ${w.other}: panels there are about ` +
+          `${formatQuantity(w.h, 'length')} across. Set a mesh size of ${formatQuantity(w.gap / GAP_PANELS, 'length')} or less for reliable fields.`,
+      ),
+    );
+  }
+}
+
+interface WorstGap {
+  ratio: number;
+  gap: number;
+  h: number;
+  a: number;
+  other: string;
+}
+
+/** Each mesh's worst gaps, by scale: they depend on the geometry alone, which a mesh stands for (a drive edit reuses them). */
+const gapsOfMesh = new WeakMap<Mesh, { scale: number; names: string; worst: WorstGap[] }>();
+
+/** The smallest gap per pair against the panel size beside it (see gapDiagnostics). */
+function worstGaps(scene: Scene3d, mesh: Mesh, scale: number): WorstGap[] {
+  const names = JSON.stringify(scene.electrodes.map((e) => e.name));
+  const kept = gapsOfMesh.get(mesh);
+  if (kept && kept.scale === scale && kept.names === names) return kept.worst;
   const K = scene.electrodes.length;
   const c = mesh.centroid;
-  const worst = new Map<string, { ratio: number; gap: number; h: number; a: number; other: string }>();
+  const worst = new Map<string, WorstGap>();
   const consider = (key: string, a: number, other: string, gap: number, h: number) => {
     const w = worst.get(key);
     if (!w || gap / h < w.ratio) worst.set(key, { ratio: gap / h, gap, h, a, other });
@@ -311,18 +341,9 @@ function gapDiagnostics(scene: Scene3d, mesh: Mesh, scale: number, diagnostics: 
       consider(`${a}|ground`, a, 'the ground plane', Math.abs(p[{ x: 0, y: 1, z: 2 }[g.axis]] - g.at), h);
     }
   }
-  for (const w of worst.values()) {
-    if (w.ratio >= GAP_PANELS) continue;
-    const e = scene.electrodes[w.a];
-    diagnostics.push(
-      diagnostic(
-        'VS403',
-        e.nameRange,
-        `Mesh too coarse for the gap of ${formatQuantity(w.gap, 'length')} between ${e.name} and ${w.other}: panels there are about ` +
-          `${formatQuantity(w.h, 'length')} across. Set a mesh size of ${formatQuantity(w.gap / GAP_PANELS, 'length')} or less for reliable fields.`,
-      ),
-    );
-  }
+  const list = [...worst.values()];
+  gapsOfMesh.set(mesh, { scale, names, worst: list });
+  return list;
 }
 /** A gap should span at least this many panel sizes (common practice for collocation BEM). */
 export const GAP_PANELS = 1;
