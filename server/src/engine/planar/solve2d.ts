@@ -552,22 +552,25 @@ function thinFields(setup: Space2d, elements: Element2d[], far: Float64Array, ta
   const mid = new Float64Array(3 * K);
   const plus = new Float64Array(3 * K);
   const minus = new Float64Array(3 * K);
-  Array.prototype.forEach.call(which, (i: number, m: number) => {
+  // A flag per density (no reads past the end of an array, which the JIT handles slowly).
+  const none = taus.map(() => false);
+  for (let m = 0; m < which.length; m++) {
+    const i = which[m];
     const el = elements[i];
-    if (!el.thin) return;
+    if (!el.thin) continue;
     const delta = 1e-3 * el.length;
     // Elements beyond NEAR_THIN element lengths are smooth across the two points: the mean of their
     // fields there is the field at the midpoint within (δ/d)² ≈ 1e-7 of their share, so they are
     // evaluated once; nearer ones (the element itself among them) at both points.
     const near = { x: el.mx, y: el.my, r: NEAR_THIN * el.length };
     fieldsAt(setup, elements, far, taus, withFree, el.mx, el.my, mid, near, false);
-    fieldsAt(setup, elements, far, taus, [], el.mx + delta * el.nx, el.my + delta * el.ny, plus, near, true);
-    fieldsAt(setup, elements, far, taus, [], el.mx - delta * el.nx, el.my - delta * el.ny, minus, near, true);
+    fieldsAt(setup, elements, far, taus, none, el.mx + delta * el.nx, el.my + delta * el.ny, plus, near, true);
+    fieldsAt(setup, elements, far, taus, none, el.mx - delta * el.nx, el.my - delta * el.ny, minus, near, true);
     for (let b = 0; b < K; b++) {
       outs[b][2 * m] = mid[3 * b + 1] + 0.5 * (plus[3 * b + 1] + minus[3 * b + 1]);
       outs[b][2 * m + 1] = mid[3 * b + 2] + 0.5 * (plus[3 * b + 2] + minus[3 * b + 2]);
     }
-  });
+  }
   return outs;
 }
 
@@ -612,6 +615,12 @@ function fieldsAt(
   const K = taus.length;
   const g = new Float64Array(3);
   const mirror = setup.mirror;
+  // Each element's (φ, E) at unit density, its image included, then weighted by every density: the
+  // kernel loop does not depend on how many densities there are.
+  const n = elements.length;
+  if (unitScratch.length < 3 * n) unitScratch = new Float64Array(3 * n);
+  const unit = unitScratch;
+  unit.fill(0, 0, 3 * n);
   const add = (j: number, px: number, py: number, sign: number, flipX: number, flipY: number, image: boolean) => {
     const el = elements[j];
     if (near) {
@@ -630,18 +639,28 @@ function fieldsAt(
       }
     } else if (setup.line && el.kind === 'line') setup.line(el, px, py, 1, true, g);
     else integrateCurve(el, 0, el.length, px, py, setup.kernel, 1, true, g);
-    for (let b = 0; b < K; b++) {
-      const t = taus[b][j];
-      if (t === 0) continue;
-      acc[3 * b] += sign * t * g[0];
-      acc[3 * b + 1] += flipX * t * g[1];
-      acc[3 * b + 2] += flipY * t * g[2];
-    }
+    unit[3 * j] += sign * g[0];
+    unit[3 * j + 1] += flipX * g[1];
+    unit[3 * j + 2] += flipY * g[2];
   };
-  for (let j = 0; j < elements.length; j++) {
+  for (let j = 0; j < n; j++) {
     add(j, x, y, 1, 1, 1, false);
     // Images of opposite sign: φ_img(p) = −φ(Mp), E_img(p) = −M·E(Mp).
     if (mirror) add(j, mirror.axis === 0 ? 2 * mirror.at - x : x, mirror.axis === 1 ? 2 * mirror.at - y : y, -1, mirror.axis === 0 ? 1 : -1, mirror.axis === 1 ? 1 : -1, true);
+  }
+  for (let b = 0; b < K; b++) {
+    const tau = taus[b];
+    let s0 = 0, s1 = 0, s2 = 0;
+    for (let j = 0; j < n; j++) {
+      const t = tau[j];
+      if (t === 0) continue;
+      s0 += t * unit[3 * j];
+      s1 += t * unit[3 * j + 1];
+      s2 += t * unit[3 * j + 2];
+    }
+    acc[3 * b] += s0;
+    acc[3 * b + 1] += s1;
+    acc[3 * b + 2] += s2;
   }
   const free = new Float64Array(3);
   for (const f of setup.free) f.add(x, y, true, free, false);
@@ -652,6 +671,8 @@ function fieldsAt(
     acc[3 * b + 2] += free[2];
   }
 }
+
+let unitScratch = new Float64Array(0);
 
 /** How a solve uses stored values: whether to build missing ones, the free charges' signature, ε. */
 interface StoredUse {
