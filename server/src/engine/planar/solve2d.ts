@@ -214,10 +214,17 @@ const layouts2d = new WeakMap<Factored, Map<string, SliceLayout>>();
 /** Most point sets stored per factorization. */
 const STORED_SETS = 12;
 
+/**
+ * Most numbers one point set may store (8 bytes each, with as much again while it is built): a
+ * larger set (many electrodes on a large slice grid) is evaluated afresh at every use instead.
+ */
+export const MAX_STORED_VALUES_2D = 1e7;
+
 function storeOf(f: Factored, key: string, set: PointSet, units: number, create: boolean): Stored | null {
   let byKey = stores2d.get(f);
   const found = byKey?.get(key);
   if (found || !create) return found ?? null;
+  if ((units + 1) * set.width * set.points > MAX_STORED_VALUES_2D) return null;
   if (!byKey) stores2d.set(f, (byKey = new Map()));
   const size = set.width * set.points;
   const stored: Stored = {
