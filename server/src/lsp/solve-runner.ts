@@ -6,7 +6,7 @@
 // evaluations to build. A live job never waits for that build: it takes what is stored and
 // evaluates the rest from the last picture (one evaluation at most, the same values). The build
 // happens while the worker is idle (warmSolveJob, after a job is done), in resumable steps that a
-// newly posted job stops; once both levels' grids of a scene are complete, a job for it skips the
+// newly posted job stops; once every level's grids of a scene are complete, a job for it skips the
 // coarse picture.
 import type { Scene } from '../../../grammar/scene';
 import { solveScene, type EngineCache } from '../engine/index';
@@ -24,7 +24,7 @@ import type { FromWorker, SolveJob } from './worker-messages';
  */
 export const COARSE_GRID_CELLS = 2304;
 
-/** Scenes whose stored grids are complete on both levels, newest last; a few, as the engine cache keeps a few levels. */
+/** Scenes whose stored grids are complete on every level, newest last; a few, as the engine cache keeps a few levels. */
 export class WarmScenes {
   private readonly keys: string[] = [];
   constructor(private readonly most = 2) {}
