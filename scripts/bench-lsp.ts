@@ -280,7 +280,7 @@ async function main() {
   );
   console.log(
     'Drive edits sum the stored per-electrode grids (engine/superpose.ts) where they are complete and evaluate the rest afresh; the worker builds them while idle ' +
-      '(here only during the debounce), coarse level first, and skips the coarse picture once every level's are complete. The coarse level has at most 600 panels (engine/solve.ts COARSE_MAX_PANELS).',
+      '(here only during the debounce), coarse level first, and skips the coarse picture once the grids of every level are complete. The coarse level has at most 600 panels (engine/solve.ts COARSE_MAX_PANELS).',
   );
 }
 
