@@ -1,15 +1,15 @@
-// The far-field panel integrals I_j(r) = ∫_Tj 1/|r − r'| dA' in WebAssembly (far-rule.wat): the 3-
-// and 4-point Gauss rules of triangle.ts, computed the same way to the bit, about three times faster
-// than the JavaScript (measured on far rows: 23 against 80 ns an entry). Entries nearer than the
-// 4-point rule's switch come back as NaN: triangle.ts panelPotential computes those. One instance
-// per panel set and thread, in a private memory: the table (272 bytes a panel), the points, the
-// last index array seen (copied once: the fast solver passes its tree order every time) and room
-// for one row or column.
+// The far-field panel integrals I_j(r) = ∫_Tj 1/|r − r'| dA' in WebAssembly (far-rule.wat): the
+// Gauss rules of triangle.ts, computed the same way to the bit, about three times faster than the
+// JavaScript (measured on far rows: 23 against 80 ns an entry). Entries within FAR_RATIO diameters
+// come back as NaN: triangle.ts panelPotential computes those by the closed form. One instance per
+// panel set and thread, in a private memory: the table (704 bytes a panel), the points, the last
+// index array seen (copied once: the fast solver passes its tree order every time) and room for
+// one row or column.
 import farRuleBytes from './far-rule.wat';
-import { FROM_3_SQ, FROM_4_SQ, GAUSS_POINTS, RULE_3, RULE_4, type Panels } from './triangle';
+import { FROM_3_SQ, FROM_4_SQ, FROM_6_SQ, GAUSS_POINTS, type Panels } from './triangle';
 
 export interface FarRule {
-  /** I over panels cols[c0 .. c0+n) at (x, y, z): a view valid until the next call, NaN where triangle.ts must compute. */
+  /** I over panels cols[c0 .. c0+n) at (x, y, z): a view valid until the next call, NaN where triangle.ts takes the closed form. */
   row(x: number, y: number, z: number, cols: Int32Array, c0: number, n: number): Float64Array;
   /** I over panel j at the points rows[r0 .. r0+m) moved to flip·p + shift (an image; the identity: 1, 0): as row. */
   col(j: number, rows: Int32Array, r0: number, m: number, flip: readonly number[], shift: readonly number[]): Float64Array;
@@ -20,7 +20,7 @@ interface Exports {
   col(t: number, points: number, rows: number, m: number, out: number, fx: number, fy: number, fz: number, sx: number, sy: number, sz: number): void;
 }
 
-const ROW_BYTES = 272;
+const ROW_BYTES = 704;
 let compiled: WebAssembly.Module | null | undefined;
 
 /** The far rule for panels P and observation points (3 per point), or null where WebAssembly is missing. */
@@ -51,9 +51,11 @@ export function createFarRule(P: Panels, points: Float64Array): FarRule | null {
     table[o + 2] = P.centroid[3 * j + 2];
     table[o + 3] = FROM_3_SQ * h2;
     table[o + 4] = FROM_4_SQ * h2;
-    for (let q = 0; q < 7; q++) {
-      // The 3-point rule then the 4-point rule: (x, y, z, weight) from byte 48.
-      const g = GAUSS_POINTS * j + (q < 3 ? RULE_3 + q : RULE_4 + q - 3), t = o + 6 + 4 * q;
+    table[o + 5] = FROM_6_SQ * h2;
+    table[o + 6] = P.farSq[j];
+    // The panel's Gauss points (x, y, z, weight) from byte 64, in triangle.ts's order.
+    for (let q = 0; q < GAUSS_POINTS; q++) {
+      const g = GAUSS_POINTS * j + q, t = o + 8 + 4 * q;
       table[t] = P.gauss[3 * g];
       table[t + 1] = P.gauss[3 * g + 1];
       table[t + 2] = P.gauss[3 * g + 2];

@@ -75,8 +75,8 @@ const GAUSS_W = [
 /** Points stored per panel: all four rules. */
 export const GAUSS_POINTS = 20;
 /** Where each rule starts among a panel's points, and (squared) from how many diameters it is used. */
-/** Where each rule's points start among a panel's GAUSS_POINTS (the 7-point rule at 0), and the squared switch distances in diameters (far-rule.ts uses them too). */
-export const RULE_6 = 7, RULE_4 = 13, RULE_3 = 17;
+/** Where each rule's points start among a panel's GAUSS_POINTS (the 7-point rule at 0), and the squared switch distances in diameters (far-rule.ts uses these too). */
+const RULE_6 = 7, RULE_4 = 13, RULE_3 = 17;
 export const FROM_6_SQ = 2.5 ** 2, FROM_4_SQ = 6 ** 2, FROM_3_SQ = 10 ** 2;
 
 /**
