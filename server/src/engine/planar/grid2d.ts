@@ -71,6 +71,12 @@ export const GRID_FULL: GridAccuracy = { order: 8, terms: 24, separation: 2, exp
 /** About 1e-4, far below a coarse mesh's own error (the live picture; expansions 2^−14 ≈ 6e-5, measured 2.6e-5). */
 export const GRID_COARSE: GridAccuracy = { order: 6, terms: 14, separation: 1.5, expansionSeparation: 1 };
 
+/**
+ * Least length of the per-density scratch arrays: small typed arrays live on the JavaScript heap and
+ * larger ones outside it, and code that has seen both (one density and several) runs slower.
+ */
+const SCRATCH = 24;
+
 /** Blocks of at most this many cells are leaves (summed cell by cell). */
 const LEAF_CELLS = 16;
 /**
@@ -404,8 +410,8 @@ export function gridEvaluate(src: GridSources, grid: Grid2d, mask: Uint8Array, o
   const cellsIn = (i0: number, i1: number, j0: number, j1: number) =>
     table[j1 * (nu + 1) + i1] - table[j0 * (nu + 1) + i1] - table[j1 * (nu + 1) + i0] + table[j0 * (nu + 1) + i0];
 
-  const acc = new Float64Array(W);
-  const img = new Float64Array(W);
+  const acc = new Float64Array(Math.max(W, SCRATCH));
+  const img = new Float64Array(Math.max(W, SCRATCH));
   const g = new Float64Array(3);
   const line = src.line ?? null;
   /** Adds item's (φ, E_x, E_y) per density at solver point (x, y) into acc (images with their signs). */
@@ -670,7 +676,7 @@ function expansionField(
   const inv2pi = 1 / (2 * Math.PI);
   const K = taus.length;
   const T = terms + 1;
-  const qs = new Float64Array(K);
+  const qs = new Float64Array(Math.max(K, SCRATCH));
   const spare: Expansion[] = [];
   /** Adds sources at (xs, ys) with charge qs[b]·sign for each density b. */
   const addSource = (t: Expansion, xs: number, ys: number, sign: number) => {

@@ -558,9 +558,9 @@ const thinStored = new WeakMap<Factored, { vectors: (Float64Array | null)[]; fre
 function thinFields(setup: Space2d, elements: Element2d[], far: Float64Array, taus: Float64Array[], withFree: boolean[], which: ArrayLike<number>): Float64Array[] {
   const K = taus.length;
   const outs = taus.map(() => new Float64Array(2 * which.length));
-  const mid = new Float64Array(3 * K);
-  const plus = new Float64Array(3 * K);
-  const minus = new Float64Array(3 * K);
+  const mid = new Float64Array(Math.max(3 * K, SCRATCH_2D));
+  const plus = new Float64Array(Math.max(3 * K, SCRATCH_2D));
+  const minus = new Float64Array(Math.max(3 * K, SCRATCH_2D));
   // A flag per density (no reads past the end of an array, which the JIT handles slowly).
   const none = taus.map(() => false);
   for (let m = 0; m < which.length; m++) {
@@ -582,6 +582,12 @@ function thinFields(setup: Space2d, elements: Element2d[], far: Float64Array, ta
   }
   return outs;
 }
+
+/**
+ * Least length of per-density scratch arrays (as grid2d.ts SCRATCH): small typed arrays live on the
+ * JavaScript heap, larger ones outside it, and code that has seen both runs slower.
+ */
+const SCRATCH_2D = 24;
 
 /** Thin elements per chunk of the stored thin-element fields. */
 const THIN_CHUNK = 16;
@@ -926,7 +932,7 @@ export function solve2d(scene: Scene2d, setup: Space2d, options: Solve2dOptions 
     width: 3,
     evaluate(taus, withFree) {
       const outs = taus.map(() => new Float64Array(3 * open.length));
-      const values = new Float64Array(3 * taus.length);
+      const values = new Float64Array(Math.max(3 * taus.length, SCRATCH_2D));
       open.forEach((at, m) => {
         const [x, y, sign] = setup.toSolver(at[0], at[1]);
         fieldsAt(setup, fine.elements, far, taus, withFree, x, y, values);
