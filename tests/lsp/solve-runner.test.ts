@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { analyzeText } from '../../grammar/index';
 import { createEngineCache, solveScene } from '../../server/src/engine/index';
-import { COARSE_GRID_CELLS, runSolveJob, warmKey, warmSolveJob, WarmScenes } from '../../server/src/lsp/solve-runner';
+import { COARSE_GRID_CELLS, COARSE_GRID_CELLS_LEAST, COARSE_PICTURE_CELLS, coarseGridCells, runSolveJob, warmKey, warmSolveJob, WarmScenes } from '../../server/src/lsp/solve-runner';
 import type { FromWorker } from '../../server/src/lsp/worker-messages';
 
 const sceneText = 'mesh coarse\nelectrode s sphere center (0, 0, 0) mm radius 10 mm potential 1 kV\nslice xz at y = 0 from (-50, -50) mm to (50, 50) mm cells 100\n';
@@ -20,6 +20,19 @@ describe('solve runner', () => {
     const slice = first.result.slices[0];
     expect(slice.nu * slice.nv).toBeLessThanOrEqual(COARSE_GRID_CELLS);
     expect(first.result.diagnostics.map((d) => d.code)).not.toContain('VS408');
+  });
+
+  it('shares a cell budget between the coarse picture\'s slices, each keeping a floor', () => {
+    expect(coarseGridCells(1)).toBe(COARSE_GRID_CELLS);
+    expect(coarseGridCells(2)).toBe(COARSE_PICTURE_CELLS / 2);
+    expect(coarseGridCells(2)).toBeLessThan(COARSE_GRID_CELLS);
+    expect(coarseGridCells(10)).toBe(COARSE_GRID_CELLS_LEAST);
+    const two = analyzeText(`${sceneText}\nslice xy at z = 0 from (-50, -50) mm to (50, 50) mm cells 100\n`).scene;
+    const out: FromWorker[] = [];
+    runSolveJob({ ...job, scene: two, levels: ['coarse'] }, createEngineCache(), () => false, (m) => out.push(m));
+    const result = (out.find((m) => m.type === 'result') as Extract<FromWorker, { type: 'result' }>).result;
+    expect(result.slices).toHaveLength(2);
+    for (const s of result.slices) expect(s.nu * s.nv).toBeLessThanOrEqual(coarseGridCells(2));
   });
 
   it('stops at once when cancelled, and says so', () => {

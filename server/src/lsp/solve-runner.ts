@@ -23,6 +23,18 @@ import type { FromWorker, SolveJob } from './worker-messages';
  * 30% less CPU time in all (measured on wafer-chuck and sensor-enclosure).
  */
 export const COARSE_GRID_CELLS = 2304;
+/**
+ * All the coarse picture's slices together get about this many cells (1.5 × one slice's cap), each
+ * at least COARSE_GRID_CELLS_LEAST: two slices 1,728 each, three 1,152 (the slices' cost grows with
+ * their number; beam-deflector's two took 125-135 ms of its 250 ms coarse picture, single-thread CPU).
+ */
+export const COARSE_PICTURE_CELLS = 3456;
+export const COARSE_GRID_CELLS_LEAST = 1024;
+
+/** The cell cap of each slice of the coarse picture of a scene with `slices` slices. */
+export function coarseGridCells(slices: number): number {
+  return Math.min(COARSE_GRID_CELLS, Math.max(COARSE_GRID_CELLS_LEAST, Math.floor(COARSE_PICTURE_CELLS / Math.max(1, slices))));
+}
 
 /** Scenes whose stored grids are complete on every level, newest last; a few, as the engine cache keeps a few levels. */
 export class WarmScenes {
@@ -54,7 +66,7 @@ function solveLevel(scene: Scene, job: SolveJob, level: SolveLevel, cache: Engin
   return solveScene(scene, {
     level,
     maxPanels: job.maxPanels,
-    maxGridCells: coarse ? Math.min(job.maxGridCells, COARSE_GRID_CELLS) : job.maxGridCells,
+    maxGridCells: coarse ? Math.min(job.maxGridCells, coarseGridCells(scene.slices.length)) : job.maxGridCells,
     isCancelled,
     cache,
   });
