@@ -628,7 +628,7 @@ function fieldsAt(
 ): void {
   acc.fill(0);
   const K = taus.length;
-  const g = new Float64Array(3);
+  const g = unitField;
   const mirror = setup.mirror;
   // Each element's (φ, E) at unit density, its image included, then weighted by every density: the
   // kernel loop does not depend on how many densities there are.
@@ -636,32 +636,10 @@ function fieldsAt(
   if (unitScratch.length < 3 * n) unitScratch = new Float64Array(3 * n);
   const unit = unitScratch;
   unit.fill(0, 0, 3 * n);
-  const add = (j: number, px: number, py: number, sign: number, flipX: number, flipY: number, image: boolean) => {
-    const el = elements[j];
-    if (near) {
-      // The reference point goes where the target went (mirrored for an image).
-      const rx = image && mirror!.axis === 0 ? 2 * mirror!.at - near.x : near.x;
-      const ry = image && mirror!.axis === 1 ? 2 * mirror!.at - near.y : near.y;
-      const reach = near.r + 0.5 * el.length;
-      const isNear = (rx - el.mx) ** 2 + (ry - el.my) ** 2 <= reach * reach;
-      if (isNear !== keepNear) return;
-    }
-    g[0] = g[1] = g[2] = 0;
-    if ((px - el.mx) ** 2 + (py - el.my) ** 2 > (FAR_RATIO * el.length) ** 2) {
-      for (let q = 0; q < FAR_RULE; q++) {
-        const o = (j * FAR_RULE + q) * 3;
-        setup.kernel(far[o], far[o + 1], px, py, far[o + 2], true, g);
-      }
-    } else if (setup.line && el.kind === 'line') setup.line(el, px, py, 1, true, g);
-    else integrateCurve(el, 0, el.length, px, py, setup.kernel, 1, true, g);
-    unit[3 * j] += sign * g[0];
-    unit[3 * j + 1] += flipX * g[1];
-    unit[3 * j + 2] += flipY * g[2];
-  };
   for (let j = 0; j < n; j++) {
-    add(j, x, y, 1, 1, 1, false);
+    addUnit(setup, elements[j], j, far, x, y, 1, 1, 1, near, keepNear, false, unit, g);
     // Images of opposite sign: φ_img(p) = −φ(Mp), E_img(p) = −M·E(Mp).
-    if (mirror) add(j, mirror.axis === 0 ? 2 * mirror.at - x : x, mirror.axis === 1 ? 2 * mirror.at - y : y, -1, mirror.axis === 0 ? 1 : -1, mirror.axis === 1 ? 1 : -1, true);
+    if (mirror) addUnit(setup, elements[j], j, far, mirror.axis === 0 ? 2 * mirror.at - x : x, mirror.axis === 1 ? 2 * mirror.at - y : y, -1, mirror.axis === 0 ? 1 : -1, mirror.axis === 1 ? 1 : -1, near, keepNear, true, unit, g);
   }
   for (let b = 0; b < K; b++) {
     const tau = taus[b];
@@ -688,6 +666,51 @@ function fieldsAt(
 }
 
 let unitScratch = new Float64Array(0);
+const unitField = new Float64Array(3);
+
+/**
+ * Adds element j's (φ, E) at unit density at (px, py), times sign and the flips, into unit[3j ..]
+ * (fieldsAt; a plain function, not a closure per call, so that the compiled caller keeps its call
+ * target). With `near` given, only the elements (or images) within near.r of (near.x, near.y)
+ * (keepNear) or only the others.
+ */
+function addUnit(
+  setup: Space2d,
+  el: Element2d,
+  j: number,
+  far: Float64Array,
+  px: number,
+  py: number,
+  sign: number,
+  flipX: number,
+  flipY: number,
+  near: { x: number; y: number; r: number } | null,
+  keepNear: boolean,
+  image: boolean,
+  unit: Float64Array,
+  g: Float64Array,
+): void {
+  const mirror = setup.mirror;
+  if (near) {
+    // The reference point goes where the target went (mirrored for an image).
+    const rx = image && mirror!.axis === 0 ? 2 * mirror!.at - near.x : near.x;
+    const ry = image && mirror!.axis === 1 ? 2 * mirror!.at - near.y : near.y;
+    const reach = near.r + 0.5 * el.length;
+    const isNear = (rx - el.mx) ** 2 + (ry - el.my) ** 2 <= reach * reach;
+    if (isNear !== keepNear) return;
+  }
+  g[0] = g[1] = g[2] = 0;
+  if ((px - el.mx) ** 2 + (py - el.my) ** 2 > (FAR_RATIO * el.length) ** 2) {
+    for (let q = 0; q < FAR_RULE; q++) {
+      const o = (j * FAR_RULE + q) * 3;
+      setup.kernel(far[o], far[o + 1], px, py, far[o + 2], true, g);
+    }
+  } else if (setup.line && el.kind === 'line') setup.line(el, px, py, 1, true, g);
+  else integrateCurve(el, 0, el.length, px, py, setup.kernel, 1, true, g);
+  unit[3 * j] += sign * g[0];
+  unit[3 * j + 1] += flipX * g[1];
+  unit[3 * j + 2] += flipY * g[2];
+}
 
 /** How a solve uses stored values: whether to build missing ones, the free charges' signature, ε. */
 interface StoredUse {
