@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { preparePanels } from '../../server/src/engine/kernels/triangle';
-import { buildPanelTree, evaluateDirect, evaluateTree, setDensities } from '../../server/src/engine/fast/treecode';
+import { buildPanelTree, evaluateDirect, evaluateTree, setDensities, setDensitiesMany } from '../../server/src/engine/fast/treecode';
 import { boxSurface, icosphere, joinMeshes } from './fixtures';
 
 // A sphere (1280 panels) and a box (864 panels) with an uneven density, evaluated on a 40×40
@@ -85,5 +85,20 @@ describe('treecode against the closed form of a uniformly charged sphere', () =>
       const g = total / r ** 2;
       for (let c = 0; c < 3; c++) expect(Math.abs(out[4 * i + 1 + c] + (g * pts[3 * i + c]) / r)).toBeLessThan(2e-3 * g);
     }
+  });
+
+  it('evaluates several density sets in one walk exactly as each set alone', () => {
+    const T = buildPanelTree(P);
+    const sets = [sigma, Float64Array.from(sigma, (v, j) => (j % 3 === 0 ? 0 : -2 * v)), Float64Array.from({ length: P.count }, (_, j) => Math.cos(j))];
+    setDensitiesMany(T, sets);
+    const many = new Float64Array(4 * sets.length * G * G);
+    evaluateTree(T, grid, 0, G * G, 0.5, many);
+    sets.forEach((set, d) => {
+      const alone = buildPanelTree(P);
+      setDensities(alone, set);
+      const one = new Float64Array(4 * G * G);
+      evaluateTree(alone, grid, 0, G * G, 0.5, one);
+      for (let i = 0; i < G * G; i++) for (let c = 0; c < 4; c++) expect(many[4 * (i * sets.length + d) + c]).toBe(one[4 * i + c]);
+    });
   });
 });

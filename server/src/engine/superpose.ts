@@ -11,8 +11,9 @@
 // The values are identical, up to rounding, to a from-scratch evaluation (evaluate.ts), which sums
 // the same contributions once: the same points, the same evaluator (direct, grid rule, treecode),
 // the same fills inside conductors and behind ground planes, the same quarter-cell shift at a free
-// charge. Building the stored values costs about K + 1 evaluations (one pass when direct sums weigh
-// each panel's kernel by every solution at once). The build is resumable: it goes point chunk by
+// charge. Building the stored values takes one pass for all K + 1 solutions: direct sums weigh each
+// panel's kernel by every solution, and the treecode walks its tree once for all of them (sharing
+// the near-panel integrals; fast/treecode.ts setDensitiesMany). The build is resumable: it goes point chunk by
 // point chunk, and what was computed before a cancellation is kept, so a later build goes on from
 // there. When it runs is the caller's choice (withGridBuilding): at the first reuse of a level with
 // new drives (the default), or only when asked, e.g. by the language server while it is idle. Until
@@ -282,19 +283,25 @@ function direct(states: FieldState3d[], pts: Float64Array, mode: EvalMode): Floa
 
 /** [φ, Ex, Ey, Ez] of one state at m points by the given evaluator. */
 function valuesAt(state: FieldState3d, pts: Float64Array, ev: Evaluator): Float64Array {
-  if (!ev.tree) return direct([state], pts, ev.mode)[0];
+  return ev.tree ? treeValues([state], pts, ev)[0] : direct([state], pts, ev.mode)[0];
+}
+
+/** [φ, Ex, Ey, Ez] of each state at m points by the treecode, one walk of the tree for all (the same numbers as one at a time). */
+function treeValues(states: FieldState3d[], pts: Float64Array, ev: { tree: FieldEvaluator; theta: number }): Float64Array[] {
   const m = pts.length / 3;
-  const out = new Float64Array(4 * m);
-  ev.tree.setDensities(state.x);
-  const panels = ev.tree.evaluate(pts, ev.theta);
+  ev.tree.setDensitiesMany(states.map((st) => st.x));
+  const panels = ev.tree.evaluateAll(pts, ev.theta);
   const free = new Float64Array(4);
-  for (let i = 0; i < m; i++) {
-    free.fill(0);
-    addFreeCharges(state, pts[3 * i], pts[3 * i + 1], pts[3 * i + 2], free);
-    out[4 * i] = panels.potential[i] + free[0];
-    for (let c = 0; c < 3; c++) out[4 * i + 1 + c] = panels.field[3 * i + c] - free[1 + c];
-  }
-  return out;
+  return states.map((state, v) => {
+    const out = new Float64Array(4 * m), p = panels[v];
+    for (let i = 0; i < m; i++) {
+      free.fill(0);
+      addFreeCharges(state, pts[3 * i], pts[3 * i + 1], pts[3 * i + 2], free);
+      out[4 * i] = p.potential[i] + free[0];
+      for (let c = 0; c < 3; c++) out[4 * i + 1 + c] = p.field[3 * i + c] - free[1 + c];
+    }
+    return out;
+  });
 }
 
 /** A solution's values are allocated when its first chunk is computed (most stay unbuilt in a live session until the warm-up). */
@@ -349,14 +356,16 @@ function complete(s: Stored, level: Level3d, images: Image[], charges: Scene3d['
   const states = level.unit.map((u) => unitState(level, u, images, []));
   if (s.free) states.push(unitState(level, s.free.of.x, images, charges));
   let step = s.step ?? FIRST_STEP;
-  if (onePass(level, ev)) {
-    // Every solution that lacks a chunk gets it in the same pass.
+  if (onePass(level, ev) || ev.tree) {
+    // Every solution that lacks a chunk gets it in the same pass (direct sums weigh each panel's
+    // kernel by every solution; the treecode walks its tree once for all of them).
     for (let a = Math.min(...all.map((u) => u.filled)); a < m; ) {
       if (isCancelled?.()) return false;
       const t = performance.now();
       const b = Math.min(m, a + step);
       const which = all.map((u, v) => (u.filled < b ? v : -1)).filter((v) => v >= 0);
-      const outs = direct(which.map((v) => states[v]), s.pts.subarray(3 * a, 3 * b), (ev as { mode: EvalMode }).mode);
+      const pts = s.pts.subarray(3 * a, 3 * b);
+      const outs = ev.tree ? treeValues(which.map((v) => states[v]), pts, ev) : direct(which.map((v) => states[v]), pts, ev.mode);
       which.forEach((v, i) => {
         valuesOf(all[v], m).set(outs[i], 4 * a);
         all[v].filled = b;

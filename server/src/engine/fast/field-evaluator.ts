@@ -7,7 +7,7 @@ import { preparePanels, type Panels } from '../kernels/triangle';
 import { runEvaluate, type EvaluateJob } from './jobs';
 import { IDENTITY, type ImageMap } from './panel-entries';
 import { fastThreads, runParallel, shared } from './pool';
-import { buildPanelTree, evaluateTree, setDensities, type PanelTree } from './treecode';
+import { buildPanelTree, evaluateTree, setDensitiesMany, type PanelTree } from './treecode';
 
 export interface EvaluatorOptions {
   /** Opening angle (default 0.5: about 1e-3 relative; 0.3: about 2e-4). */
@@ -41,34 +41,47 @@ export class FieldEvaluator {
   ) {
     this.options = { theta: 0.5, threads: 0, leafSize: 16, ...options };
     this.tree = buildPanelTree(panels ?? preparePanels(mesh), this.options.leafSize);
-    setDensities(this.tree, sigma);
+    setDensitiesMany(this.tree, [sigma]);
   }
 
   /** New densities on the same mesh (another solve): only the moments are recomputed. */
   setDensities(sigma: Float64Array): void {
-    setDensities(this.tree, sigma);
+    this.setDensitiesMany([sigma]);
+  }
+
+  /** Several density sets at once: evaluateAll then gives each one's values from one walk of the tree. */
+  setDensitiesMany(sigmas: readonly Float64Array[]): void {
+    setDensitiesMany(this.tree, sigmas);
     this.sharedTree = null;
   }
 
-  /** Values at many points (3 coordinates each). */
+  /** Values at many points (3 coordinates each), of the (first) density set. */
   evaluate(points: Float64Array, theta = this.options.theta): FieldValues {
-    const count = points.length / 3;
-    const raw = new Float64Array(4 * count);
+    return this.evaluateAll(points, theta)[0];
+  }
+
+  /** Values at many points (3 coordinates each), one set per density set. */
+  evaluateAll(points: Float64Array, theta = this.options.theta): FieldValues[] {
+    const count = points.length / 3, D = this.tree.densities;
+    const raw = new Float64Array(4 * D * count);
     for (const im of this.images) {
       const img = new Float64Array(3 * count);
       for (let i = 0; i < 3 * count; i++) img[i] = im.flip[i % 3] * points[i] + im.shift[i % 3];
       const part = this.sums(img, count, theta);
-      for (let i = 0; i < count; i++) {
-        raw[4 * i] += im.sign * part[4 * i];
-        for (let c = 0; c < 3; c++) raw[4 * i + 1 + c] += im.sign * im.flip[c] * part[4 * i + 1 + c];
+      for (let e = 0; e < D * count; e++) {
+        raw[4 * e] += im.sign * part[4 * e];
+        for (let c = 0; c < 3; c++) raw[4 * e + 1 + c] += im.sign * im.flip[c] * part[4 * e + 1 + c];
       }
     }
-    const potential = new Float64Array(count), field = new Float64Array(3 * count);
-    for (let i = 0; i < count; i++) {
-      potential[i] = this.scale * raw[4 * i];
-      for (let c = 0; c < 3; c++) field[3 * i + c] = -this.scale * raw[4 * i + 1 + c];
-    }
-    return { potential, field };
+    return Array.from({ length: D }, (_, d) => {
+      const potential = new Float64Array(count), field = new Float64Array(3 * count);
+      for (let i = 0; i < count; i++) {
+        const e = 4 * (i * D + d);
+        potential[i] = this.scale * raw[e];
+        for (let c = 0; c < 3; c++) field[3 * i + c] = -this.scale * raw[e + 1 + c];
+      }
+      return { potential, field };
+    });
   }
 
   /** One point (field lines step by step): [φ, Ex, Ey, Ez]. */
@@ -84,16 +97,17 @@ export class FieldEvaluator {
     // Both threads from 512 points (a coarse picture's slices have 1,000-2,300 cells outside the
     // conductors; a point costs tens of microseconds, the hand-over well under a millisecond).
     const threads = count >= 512 ? fastThreads(this.options.threads || undefined) : 1;
+    const D = this.tree.densities;
     if (threads <= 1) {
-      const out = count === 1 ? this.one.fill(0) : new Float64Array(4 * count);
+      const out = count === 1 && D === 1 ? this.one.fill(0) : new Float64Array(4 * D * count);
       evaluateTree(this.tree, points, 0, count, theta, out);
-      return count === 1 ? Float64Array.from(out) : out;
+      return count === 1 && D === 1 ? Float64Array.from(out) : out;
     }
     const job: EvaluateJob = {
       kind: 'evaluate',
       tree: this.shareTree(),
       points: shared(points),
-      out: new Float64Array(new SharedArrayBuffer(32 * count)),
+      out: new Float64Array(new SharedArrayBuffer(32 * D * count)),
       theta,
       count,
       counter: new Int32Array(new SharedArrayBuffer(4)),
@@ -101,7 +115,7 @@ export class FieldEvaluator {
     };
     const replies = runParallel(threads, job as unknown as Record<string, unknown>, () => runEvaluate({ ...job, tree: this.tree }));
     if (!replies) {
-      const out = new Float64Array(4 * count);
+      const out = new Float64Array(4 * D * count);
       evaluateTree(this.tree, points, 0, count, theta, out);
       return out;
     }
@@ -117,6 +131,7 @@ export class FieldEvaluator {
     this.sharedTree = {
       P,
       tree,
+      densities: t.densities,
       center: shared(t.center),
       radius: shared(t.radius),
       moments: shared(t.moments),
