@@ -192,8 +192,9 @@ export class ServerCore {
       const geometry = geometrySignature(scene);
       // A drive-only edit of a 3d scene asks for the coarse picture too: the worker sums what the stored
       // per-electrode grids hold and evaluates the rest afresh, one evaluation a level, and skips the
-      // coarse level once the grids are complete (warmed while idle). The 2d engines build their grids
-      // at the first drive edit, so for them the coarse pass is skipped as before.
+      // coarse level once the grids are complete (warmed while idle). The 2d engines' stored values are
+      // warmed while idle too (engine/planar/warm.ts) and a drive edit sums them in milliseconds, so
+      // for them the full level alone is asked for.
       const drivesOnly = state.solved?.geometry === geometry && state.solved.level === 'full';
       const levels: SolveLevel[] = drivesOnly && scene.space !== '3d' ? ['full'] : ['coarse', 'full'];
       const seconds = this.settings.maxSolveTime;

@@ -52,8 +52,8 @@ export class WarmScenes {
 
 /**
  * What a scene's stored grids depend on: the geometry, the free charges and the limits. Null without
- * a geometry signature, and for the 2d spaces, whose engines build their grids in one step that
- * cannot be stopped (so they are not warmed in the background).
+ * a geometry signature, and for the 2d spaces, whose engines keep their own record of what is warm
+ * (engine/planar/warm.ts).
  */
 export function warmKey(job: Pick<SolveJob, 'scene' | 'geometry' | 'maxPanels' | 'maxGridCells'>): string | null {
   if (job.geometry === undefined || job.scene.space !== '3d') return null;
