@@ -13,7 +13,8 @@ import { createEngineCache, solveScene } from '../../server/src/engine/index';
 import { storedProgress, warmStoredGrids, withGridBuilding } from '../../server/src/engine/superpose';
 
 // A slice of 150 × 150 cells: over the coarse picture's 2e5 point-panel pairs, so it goes through
-// the treecode (one solution at a time, so a build costs K + 1 evaluations and is done in chunks).
+// the treecode (one walk of the tree serves all solutions, but each adds its own multipole terms,
+// so a build costs several evaluations' worth and is done in chunks).
 const sceneText = (hv: string, shield = '-2 kV') => `
 scene "Build check"
 space 3d
@@ -155,5 +156,22 @@ describe('building the stored grids of drive-only edits', () => {
     const edited = live('-7 kV');
     expect(storedProgress(levelOf()).directions).toBe(0);
     expectSame(edited, solveScene(scene('-7 kV'), { level: 'coarse' })!);
+  });
+
+  it("warmStoredGrids still builds the coarse picture's grids after a full solve went over the same level for its estimate", () => {
+    const cache = createEngineCache();
+    const live = (hv: string, level: 'coarse' | 'full') => withGridBuilding('stored-only', () => solveScene(scene(hv), { level, cache }))!;
+    const coarse = live('10 kV', 'coarse');
+    const full = live('10 kV', 'full');
+    // The full solve's estimate level is the coarse picture's mesh (scale 2, within the coarse budget).
+    expect(full.stats.levels[0]).toBe(coarse.stats.panels);
+    const c3 = cache.store.get('3d') as Cache3d;
+    const coarseLevel = [...c3.levels.values()].find((l) => l.sys.n === coarse.stats.panels)!;
+    expect(warmStoredGrids(cache, () => false)).toBe(true);
+    // The coarse picture's slice and probe grids are complete (not only the estimate pass's surface).
+    const progress = storedProgress(coarseLevel);
+    expect(progress.total).toBeGreaterThan(3 * 150 * 70);
+    expect(progress.done).toBe(progress.total);
+    expectSame(live('-7 kV', 'coarse'), solveScene(scene('-7 kV'), { level: 'coarse' })!);
   });
 });

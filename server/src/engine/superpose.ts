@@ -500,10 +500,19 @@ export function warmStoredGrids(cache: EngineCache, isCancelled: () => boolean, 
     .sort((a, b) => b.store.lastUse - a.store.lastUse)
     .filter((u, _, all) => u.geometry === all[0].geometry)
     .slice(0, levels);
+  // Of each kind (slices, probes, thin panels), what the latest use that evaluated that kind went
+  // through: a full solve's pass over its estimate level, which may be the coarse picture's level,
+  // evaluates its surface alone and must not hide that picture's slices and probes.
+  const latest = (kind: Stored[]) => {
+    const at = Math.max(-1, ...kind.map((s) => s.use?.at ?? -1));
+    return kind.filter((s) => s.use !== null && s.use.at === at);
+  };
   const work = used.flatMap(({ level, store }) =>
-    [...store.slices.values(), ...store.probes.values(), ...(store.thin ? [store.thin] : [])]
-      .filter((s) => s.use?.at === store.uses)
-      .map((s) => ({ s, level, left: workLeft(s, level, s.use!.ev) })),
+    [...latest([...store.slices.values()]), ...latest([...store.probes.values()]), ...latest(store.thin ? [store.thin] : [])].map((s) => ({
+      s,
+      level,
+      left: workLeft(s, level, s.use!.ev),
+    })),
   );
   // The coarsest level first (what a drive edit's first picture needs), then the cheapest first.
   work.sort((a, b) => a.level.sys.n - b.level.sys.n || a.left - b.left);
