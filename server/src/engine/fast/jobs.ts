@@ -1,6 +1,8 @@
 // The units of parallel work, written once and run both on the calling thread and in the workers
-// (server/src/engine/fast/worker.ts): filling H-matrix blocks, the H-matrix product and evaluating
-// the treecode at points. Each thread takes chunks from a shared atomic counter until none are left.
+// (server/src/engine/fast/worker.ts): filling H-matrix blocks, the H-matrix product, building
+// (local blocks, the coarse level's row bands) and applying the preconditioner, dense rows and dense
+// products of smaller systems, and evaluating the treecode at points. Each thread takes chunks from
+// a shared atomic counter until none are left.
 import { preparePanels, type Panels } from '../kernels/triangle';
 import { fillBlock, packProduct, PackWriter, type BlockPack, type BlockTask } from './hmatrix';
 import { panelEntrySource, type ImageMap } from './panel-entries';
