@@ -273,14 +273,7 @@ export function fillDenseRows(
     }
     if (far && v && list) {
       v.fill(0);
-      for (let k = 0; k < I; k++) {
-        const x = rx[k], y = ry[k], z = rz[k];
-        const G = far.rule.row(x, y, z, list, 0, count);
-        for (let m = 0; m < count; m++) {
-          const g = G[m];
-          v[m] += sign[k] * (g === g ? g : panelPotential(P, list[m], x, y, z));
-        }
-      }
+      for (let k = 0; k < I; k++) far.rule.addRow(rx[k], ry[k], rz[k], list, 0, count, sign[k], v);
       for (let m = 0; m < count; m++) A[row + list[m]] = INV_4PI * v[m];
       continue;
     }

@@ -43,50 +43,18 @@ export function panelEntrySource(P: Panels, points: Float64Array, scale: number,
     };
   }
   // The far entries from far-rule.ts (the same numbers to the bit), the rest from panelPotential;
-  // summed over the images in the same order as `at`, then scaled.
+  // summed over the images in the same order as `at`, then scaled (0 + 1·v and v·scale are exact,
+  // so a plain system gets `at`'s numbers too).
   return {
     row(i, cols, c0, n, out) {
       const x = points[3 * i], y = points[3 * i + 1], z = points[3 * i + 2];
-      if (plain) {
-        const I = far.row(x, y, z, cols, c0, n);
-        for (let k = 0; k < n; k++) {
-          const v = I[k];
-          out[k] = scale * (v === v ? v : panelPotential(P, cols[c0 + k], x, y, z));
-        }
-        return;
-      }
       out.fill(0, 0, n);
-      for (const im of images) {
-        const xi = im.flip[0] * x + im.shift[0], yi = im.flip[1] * y + im.shift[1], zi = im.flip[2] * z + im.shift[2];
-        const I = far.row(xi, yi, zi, cols, c0, n);
-        for (let k = 0; k < n; k++) {
-          const v = I[k];
-          out[k] += im.sign * (v === v ? v : panelPotential(P, cols[c0 + k], xi, yi, zi));
-        }
-      }
+      for (const im of images) far.addRow(im.flip[0] * x + im.shift[0], im.flip[1] * y + im.shift[1], im.flip[2] * z + im.shift[2], cols, c0, n, im.sign, out);
       for (let k = 0; k < n; k++) out[k] *= scale;
     },
     col(j, rows, r0, m, out) {
-      if (plain) {
-        const I = far.col(j, rows, r0, m, IDENTITY[0].flip, IDENTITY[0].shift);
-        for (let k = 0; k < m; k++) {
-          const v = I[k];
-          out[k] = v === v ? scale * v : at(rows[r0 + k], j);
-        }
-        return;
-      }
       out.fill(0, 0, m);
-      for (const im of images) {
-        const I = far.col(j, rows, r0, m, im.flip, im.shift);
-        for (let k = 0; k < m; k++) {
-          let v = I[k];
-          if (v !== v) {
-            const p = 3 * rows[r0 + k];
-            v = panelPotential(P, j, im.flip[0] * points[p] + im.shift[0], im.flip[1] * points[p + 1] + im.shift[1], im.flip[2] * points[p + 2] + im.shift[2]);
-          }
-          out[k] += im.sign * v;
-        }
-      }
+      for (const im of images) far.addCol(j, rows, r0, m, im.flip, im.shift, im.sign, out);
       for (let k = 0; k < m; k++) out[k] *= scale;
     },
   };

@@ -6,13 +6,17 @@
 // index array seen (copied once: the fast solver passes its tree order every time) and room for
 // one row or column.
 import farRuleBytes from './far-rule.wat';
-import { FROM_3_SQ, FROM_4_SQ, FROM_6_SQ, GAUSS_POINTS, type Panels } from './triangle';
+import { FROM_3_SQ, FROM_4_SQ, FROM_6_SQ, GAUSS_POINTS, panelPotential, type Panels } from './triangle';
 
 export interface FarRule {
   /** I over panels cols[c0 .. c0+n) at (x, y, z): a view valid until the next call, NaN where triangle.ts takes the closed form. */
   row(x: number, y: number, z: number, cols: Int32Array, c0: number, n: number): Float64Array;
   /** I over panel j at the points rows[r0 .. r0+m) moved to flip·p + shift (an image; the identity: 1, 0): as row. */
   col(j: number, rows: Int32Array, r0: number, m: number, flip: readonly number[], shift: readonly number[]): Float64Array;
+  /** out[k] += sign · I over panel cols[c0 + k] at (x, y, z), k < n: row, with triangle.ts's closed form where it gives NaN. */
+  addRow(x: number, y: number, z: number, cols: Int32Array, c0: number, n: number, sign: number, out: Float64Array): void;
+  /** out[k] += sign · I over panel j at point rows[r0 + k] moved to flip·p + shift, k < m: col, with the closed form where it gives NaN. */
+  addCol(j: number, rows: Int32Array, r0: number, m: number, flip: readonly number[], shift: readonly number[], sign: number, out: Float64Array): void;
 }
 
 interface Exports {
@@ -72,7 +76,7 @@ export function createFarRule(P: Panels, points: Float64Array): FarRule | null {
       indexed = a;
     }
   };
-  return {
+  const rule: FarRule = {
     row(x, y, z, cols, c0, n) {
       use(cols);
       k.row(x, y, z, TABLE, INDEX + 4 * c0, n, OUT);
@@ -83,5 +87,24 @@ export function createFarRule(P: Panels, points: Float64Array): FarRule | null {
       k.col(TABLE + ROW_BYTES * j, POINTS, INDEX + 4 * r0, m, OUT, flip[0], flip[1], flip[2], shift[0], shift[1], shift[2]);
       return out.subarray(0, m);
     },
+    addRow(x, y, z, cols, c0, n, sign, into) {
+      const I = rule.row(x, y, z, cols, c0, n);
+      for (let a = 0; a < n; a++) {
+        const v = I[a];
+        into[a] += sign * (v === v ? v : panelPotential(P, cols[c0 + a], x, y, z));
+      }
+    },
+    addCol(j, rows, r0, m, flip, shift, sign, into) {
+      const I = rule.col(j, rows, r0, m, flip, shift);
+      for (let a = 0; a < m; a++) {
+        let v = I[a];
+        if (v !== v) {
+          const p = 3 * rows[r0 + a];
+          v = panelPotential(P, j, flip[0] * points[p] + shift[0], flip[1] * points[p + 1] + shift[1], flip[2] * points[p + 2] + shift[2]);
+        }
+        into[a] += sign * v;
+      }
+    },
   };
+  return rule;
 }
